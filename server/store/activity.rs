@@ -1,0 +1,61 @@
+//! The activity log: one row for every change, with who, when, and before -> after.
+
+use super::StoreResult;
+use serde::Serialize;
+use sqlx::{FromRow, SqliteExecutor};
+
+#[derive(Debug, Clone, Serialize, FromRow)]
+pub struct ActivityRow {
+    pub id: i64,
+    pub at: String,
+    pub actor: String,
+    pub action: String,
+    pub subject: String,
+    pub before_state: Option<String>,
+    pub after_state: Option<String>,
+}
+
+/// One change to record. `before` / `after` are short JSON or text snapshots.
+#[derive(Debug, Clone)]
+pub struct Change<'a> {
+    pub actor: &'a str,
+    pub action: &'a str,
+    pub subject: &'a str,
+    pub before: Option<String>,
+    pub after: Option<String>,
+}
+
+pub async fn record(db: impl SqliteExecutor<'_>, study_id: Option<i64>, c: Change<'_>) -> StoreResult<()> {
+    sqlx::query(
+        "INSERT INTO activity (study_id, actor, action, subject, before_state, after_state)
+         VALUES (?, ?, ?, ?, ?, ?)",
+    )
+    .bind(study_id)
+    .bind(c.actor)
+    .bind(c.action)
+    .bind(c.subject)
+    .bind(c.before)
+    .bind(c.after)
+    .execute(db)
+    .await?;
+    Ok(())
+}
+
+/// The newest `limit` entries of a study, optionally only those whose action matches.
+pub async fn list(
+    db: impl SqliteExecutor<'_>,
+    study_id: i64,
+    action: Option<&str>,
+    limit: i64,
+) -> StoreResult<Vec<ActivityRow>> {
+    sqlx::query_as(
+        "SELECT id, at, actor, action, subject, before_state, after_state FROM activity
+         WHERE study_id = ? AND (?2 IS NULL OR action = ?2)
+         ORDER BY id DESC LIMIT ?3",
+    )
+    .bind(study_id)
+    .bind(action)
+    .bind(limit)
+    .fetch_all(db)
+    .await
+}

@@ -1,0 +1,40 @@
+//! The store: every SQL statement of the application lives here.
+//!
+//! Each function takes an executor (`impl SqliteExecutor`) for a single statement,
+//! or `&mut SqliteConnection` when it runs several, so callers can compose them in
+//! one transaction (`let mut tx = pool.begin().await?; f(&mut tx).await?;`).
+
+pub mod activity;
+pub mod lithologies;
+pub mod sea_level;
+pub mod studies;
+pub mod uploads;
+pub mod wells;
+
+use sqlx::sqlite::{SqliteConnectOptions, SqliteJournalMode, SqlitePool, SqlitePoolOptions, SqliteSynchronous};
+use std::path::Path;
+use std::str::FromStr;
+use std::time::Duration;
+
+/// The migrations embedded in the binary at compile time.
+pub static MIGRATOR: sqlx::migrate::Migrator = sqlx::migrate!("./migrations");
+
+/// Open (creating if missing) the SQLite database at `path` with WAL, foreign keys and
+/// a busy timeout, and bring its schema up to date.
+pub async fn open(path: &Path) -> Result<SqlitePool, sqlx::Error> {
+    let options = SqliteConnectOptions::from_str(&format!("sqlite://{}", path.display()))?
+        .create_if_missing(true)
+        .journal_mode(SqliteJournalMode::Wal)
+        .synchronous(SqliteSynchronous::Normal)
+        .foreign_keys(true)
+        .busy_timeout(Duration::from_secs(10));
+    let pool = SqlitePoolOptions::new()
+        .max_connections(8)
+        .connect_with(options)
+        .await?;
+    MIGRATOR.run(&pool).await?;
+    Ok(pool)
+}
+
+/// A human-readable error for the database layer, for logs. Users never see it.
+pub type StoreResult<T> = Result<T, sqlx::Error>;
