@@ -3,7 +3,7 @@
 use super::StoreResult;
 use crate::science::{Erosion, LithologyMix, MixPart, Surface, WaterDepth};
 use serde::Serialize;
-use sqlx::{FromRow, SqliteConnection, SqliteExecutor};
+use sqlx::{FromRow, QueryBuilder, Sqlite, SqliteConnection, SqliteExecutor};
 
 #[derive(Debug, Clone, Serialize, FromRow)]
 pub struct WellRow {
@@ -110,6 +110,14 @@ pub async fn get(db: impl SqliteExecutor<'_>, study_id: i64, well_id: i64) -> St
         .await
 }
 
+pub async fn find_by_name(db: impl SqliteExecutor<'_>, study_id: i64, name: &str) -> StoreResult<Option<WellRow>> {
+    sqlx::query_as("SELECT id, study_id, name, x, y, lat, lon, notes FROM wells WHERE study_id = ? AND name = ?")
+        .bind(study_id)
+        .bind(name)
+        .fetch_optional(db)
+        .await
+}
+
 pub async fn list(db: impl SqliteExecutor<'_>, study_id: i64) -> StoreResult<Vec<WellRow>> {
     sqlx::query_as("SELECT id, study_id, name, x, y, lat, lon, notes FROM wells WHERE study_id = ? ORDER BY name")
         .bind(study_id)
@@ -207,26 +215,29 @@ pub struct Location {
     pub notes: String,
 }
 
-/// Insert the surfaces of a well, shallowest first.
+/// Rows per multi-row INSERT: 10 values a row stays far below SQLite's variable limit.
+const SURFACE_ROWS_PER_INSERT: usize = 500;
+
+/// Insert the surfaces of a well, shallowest first, in multi-row statements.
 pub async fn insert_surfaces(conn: &mut SqliteConnection, well_id: i64, surfaces: &[Surface]) -> StoreResult<()> {
-    for (position, s) in surfaces.iter().enumerate() {
-        sqlx::query(
+    for (chunk_no, chunk) in surfaces.chunks(SURFACE_ROWS_PER_INSERT).enumerate() {
+        let mut q = QueryBuilder::<Sqlite>::new(
             "INSERT INTO surfaces (well_id, position, horizon, depth_m, age_ma, lithology,
-                water_depth_min_m, water_depth_max_m, eroded_m, eroded_at_ma)
-             VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
-        )
-        .bind(well_id)
-        .bind(position as i64)
-        .bind(&s.horizon)
-        .bind(s.depth_m)
-        .bind(s.age_ma)
-        .bind(s.lithology_below.as_ref().map(LithologyMix::label))
-        .bind(s.water_depth.min_m)
-        .bind(s.water_depth.max_m)
-        .bind(s.erosion.map(|e| e.eroded_m))
-        .bind(s.erosion.map(|e| e.eroded_at_ma))
-        .execute(&mut *conn)
-        .await?;
+                water_depth_min_m, water_depth_max_m, eroded_m, eroded_at_ma) ",
+        );
+        q.push_values(chunk.iter().enumerate(), |mut row, (i, s)| {
+            row.push_bind(well_id)
+                .push_bind((chunk_no * SURFACE_ROWS_PER_INSERT + i) as i64)
+                .push_bind(s.horizon.clone())
+                .push_bind(s.depth_m)
+                .push_bind(s.age_ma)
+                .push_bind(s.lithology_below.as_ref().map(LithologyMix::label))
+                .push_bind(s.water_depth.min_m)
+                .push_bind(s.water_depth.max_m)
+                .push_bind(s.erosion.map(|e| e.eroded_m))
+                .push_bind(s.erosion.map(|e| e.eroded_at_ma));
+        });
+        q.build().execute(&mut *conn).await?;
     }
     Ok(())
 }

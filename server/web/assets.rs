@@ -1,0 +1,22 @@
+//! Static files, embedded in the binary so the server runs from anywhere.
+
+use axum::Router;
+use axum::http::header;
+use axum::response::IntoResponse;
+use axum::routing::get;
+
+const STYLE_CSS: &str = include_str!("../../static/style.css");
+const APP_JS: &str = include_str!("../../static/app.js");
+
+pub fn routes() -> Router<super::AppState> {
+    Router::new()
+        .route("/static/style.css", get(|| async { asset("text/css; charset=utf-8", STYLE_CSS) }))
+        .route("/static/app.js", get(|| async { asset("text/javascript; charset=utf-8", APP_JS) }))
+}
+
+fn asset(content_type: &'static str, body: &'static str) -> impl IntoResponse {
+    (
+        [(header::CONTENT_TYPE, content_type), (header::CACHE_CONTROL, "public, max-age=3600")],
+        body,
+    )
+}

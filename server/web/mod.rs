@@ -1,0 +1,62 @@
+//! The web layer: one router per feature, merged at the root. Handlers are thin:
+//! they parse input, call the store or a service, and render a page or JSON.
+//! Every page has a JSON twin under `/api/`.
+
+pub mod activity;
+pub mod assets;
+pub mod catalogue;
+pub mod error;
+pub mod pages;
+pub mod staging;
+pub mod studies;
+pub mod upload;
+pub mod wells;
+
+use axum::Router;
+use axum::response::Redirect;
+use axum::routing::get;
+use sqlx::SqlitePool;
+use std::sync::Arc;
+use tower_http::trace::TraceLayer;
+
+pub use error::{ApiResult, AppError, HtmlError, PageResult};
+
+/// Largest request body accepted (uploads included): the tops limit plus room for the
+/// wells and sea-level files and the form fields.
+pub const MAX_BODY_BYTES: usize = crate::input::MAX_FILE_BYTES * 2 + 1024 * 1024;
+
+/// What every handler can reach.
+#[derive(Clone)]
+pub struct AppState {
+    pub db: SqlitePool,
+    /// Uploaded files waiting for the user to check the preview and confirm.
+    pub staging: Arc<staging::Staging>,
+}
+
+impl AppState {
+    pub fn new(db: SqlitePool) -> Self {
+        AppState {
+            db,
+            staging: Arc::new(staging::Staging::default()),
+        }
+    }
+}
+
+/// The whole application.
+pub fn router(state: AppState) -> Router {
+    Router::new()
+        .route("/", get(|| async { Redirect::to("/studies") }))
+        .merge(studies::routes())
+        .merge(wells::routes())
+        .merge(upload::routes())
+        .merge(catalogue::routes())
+        .merge(activity::routes())
+        .merge(assets::routes())
+        .layer(axum::extract::DefaultBodyLimit::max(MAX_BODY_BYTES))
+        .layer(TraceLayer::new_for_http())
+        .with_state(state)
+}
+
+/// The name recorded in the activity log for a change. Until accounts exist every
+/// change is made by the one local user of the server.
+pub const LOCAL_ACTOR: &str = "local user";
