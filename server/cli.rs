@@ -16,6 +16,8 @@ pub struct Cli {
 pub enum Command {
     /// Serve the web app (what plain `sagline` does).
     Serve(ServeArgs),
+    /// Analyse a tops file and print the results as JSON or CSV.
+    Analyze(crate::batch::AnalyzeArgs),
 }
 
 #[derive(Debug, Clone, Args)]
@@ -45,6 +47,7 @@ impl Default for ServeArgs {
 pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
+        Some(Command::Analyze(args)) => crate::batch::run(&args),
         Some(Command::Serve(args)) => serve_blocking(args),
         None => serve_blocking(ServeArgs::default()),
     }

@@ -1,0 +1,90 @@
+//! The batch JSON contract of PRODUCT.md ("a stable contract; extend, don't break").
+//!
+//! These structs are only the serialised shape; `super::run` fills them from the
+//! science core's results. Field names and nesting follow PRODUCT.md exactly;
+//! additions are marked as extensions.
+
+use crate::science::ModelParameters;
+use serde::Serialize;
+use std::collections::BTreeMap;
+
+/// The whole output of `sagline analyze --format json`.
+#[derive(Debug, Clone, Serialize)]
+pub struct Report {
+    pub parameters: ParametersOut,
+    pub wells: Vec<WellOut>,
+}
+
+/// The parameters as used, with the lithology catalogue.
+#[derive(Debug, Clone, Serialize)]
+pub struct ParametersOut {
+    #[serde(flatten)]
+    pub model: ModelParameters,
+    pub lithologies: Vec<LithologyOut>,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct LithologyOut {
+    pub name: String,
+    pub surface_porosity: f64,
+    pub compaction_per_km: f64,
+    pub grain_density_kg_m3: f64,
+}
+
+#[derive(Debug, Clone, Copy, Serialize)]
+pub struct RangeOut {
+    pub min: f64,
+    pub best: f64,
+    pub max: f64,
+}
+
+/// One entry per surface age (and per `eroded_at_ma`), oldest first.
+#[derive(Debug, Clone, Serialize)]
+pub struct HistoryOut {
+    pub age_ma: f64,
+    pub sediment_thickness_m: f64,
+    pub sediment_density_kg_m3: Option<f64>,
+    pub water_depth_m: RangeOut,
+    pub sea_level_m: f64,
+    pub tectonic_subsidence_m: RangeOut,
+    /// Burial depth of each horizon below the depositional surface (m).
+    pub horizon_depths_m: BTreeMap<String, f64>,
+    /// Extension: the surface that was the depositional surface at this age.
+    pub depositional_horizon: String,
+    /// Extension: basement depth below present sea level under its sediment and water (m).
+    pub total_subsidence_m: f64,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct PhaseOut {
+    pub phase: &'static str,
+    pub from_ma: f64,
+    pub to_ma: f64,
+}
+
+#[derive(Debug, Clone, Copy, Serialize)]
+pub struct HeatFlowPoint {
+    pub age_ma: f64,
+    pub value: f64,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct StretchingOut {
+    pub model: &'static str,
+    pub beta: f64,
+    pub beta_min: f64,
+    pub beta_max: f64,
+    pub rift_onset_ma: f64,
+    pub rift_end_ma: f64,
+    pub rms_misfit_m: f64,
+    pub heat_flow_mw_m2: Vec<HeatFlowPoint>,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct WellOut {
+    pub well: String,
+    pub warnings: Vec<String>,
+    pub history: Vec<HistoryOut>,
+    pub phases: Vec<PhaseOut>,
+    pub stretching: Option<StretchingOut>,
+}

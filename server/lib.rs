@@ -1,0 +1,24 @@
+//! Sagline: well-by-well subsidence analysis for sedimentary basins.
+//!
+//! Dependencies point one way: `web` → (`services`, `store`, `analysis`) → `science`.
+
+/// The pure science core: decompaction, backstripping, stretching models, heat flow.
+pub mod science;
+/// Reading and checking the input CSV files (tops, wells, sea level, picks).
+pub mod input;
+/// Whole-well and whole-study analysis on top of the science core, and the JSON contract.
+pub mod analysis;
+/// The `sagline analyze` batch command.
+pub mod batch;
+/// The store: every SQL statement, as functions taking an executor.
+pub mod store;
+/// Operations that change data: one transaction each, with their activity-log row.
+pub mod services;
+/// The demo study, built from the files in `demo-db/`.
+pub mod demo;
+/// The HTTP layer: routers per feature, pages and their JSON twins.
+pub mod web;
+/// Starting and stopping the web server.
+pub mod server;
+/// The command line.
+pub mod cli;
