@@ -187,3 +187,33 @@ pub async fn delete_lithology(db: &SqlitePool, study_id: i64, lithology_id: i64,
     tx.commit().await?;
     Ok(())
 }
+
+/// Everything a study's wells are analysed with: parameters, catalogue, sea level.
+pub async fn study_inputs(db: &SqlitePool, study_id: i64) -> Result<crate::analysis::StudyInputs, ServiceError> {
+    let study = store::studies::get(db, study_id)
+        .await?
+        .ok_or_else(|| ServiceError::NotFound(format!("study {study_id}")))?;
+    let rows = store::lithologies::list(db, study_id).await?;
+    let lithologies = rows
+        .into_iter()
+        .map(|r| {
+            Lithology::new(&r.name, r.surface_porosity, r.compaction_per_km, r.grain_density_kg_m3)
+                .map(|l| l.with_source(r.source))
+                .map_err(|e| ServiceError::Invalid(format!("lithology '{}' of this study: {e}", r.name)))
+        })
+        .collect::<Result<Vec<_>, _>>()?;
+    let catalogue = Catalogue::new(lithologies).map_err(|e| ServiceError::Invalid(e.to_string()))?;
+    let points = store::sea_level::points(db, study_id).await?;
+    let sea_level = crate::science::SeaLevelCurve::new(points).map_err(|e| ServiceError::Invalid(e.to_string()))?;
+    Ok(crate::analysis::StudyInputs {
+        params: study.parameters(),
+        catalogue,
+        sea_level,
+    })
+}
+
+/// A stored well as the science core's column.
+pub fn well_column(name: &str, rows: &[store::wells::SurfaceRow]) -> Result<crate::science::WellColumn, ServiceError> {
+    crate::science::WellColumn::new(name, rows.iter().map(|r| r.to_surface()).collect())
+        .map_err(|e| ServiceError::Invalid(e.to_string()))
+}

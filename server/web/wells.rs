@@ -4,6 +4,8 @@
 use super::pages::WellPage;
 use super::studies::{StudyInfo, load_study};
 use super::{ApiResult, AppError, AppState, PageResult};
+use crate::analysis::{self, WellAnalysis, contract::WellOut};
+use crate::services::{self, ServiceError};
 use crate::store;
 use crate::store::wells::{SurfaceRow, WellRow};
 use askama::Template;
@@ -53,11 +55,80 @@ fn column_rows(surfaces: &[SurfaceRow]) -> Vec<ColumnRow> {
         .collect()
 }
 
+/// One unit of the column restored to its position at an age.
+#[derive(Debug, Clone, Serialize)]
+pub struct RestoredUnitView {
+    pub top_horizon: String,
+    pub base_horizon: String,
+    pub lithology: String,
+    pub top_m: f64,
+    pub base_m: f64,
+    pub thickness_m: f64,
+    pub mean_porosity: f64,
+    pub density_kg_m3: f64,
+}
+
+/// The restored column at one age.
+#[derive(Debug, Clone, Serialize)]
+pub struct RestoredStepView {
+    pub age_ma: f64,
+    pub depositional_horizon: String,
+    pub units: Vec<RestoredUnitView>,
+}
+
 #[derive(Debug, Serialize)]
 pub struct WellView {
     pub study: StudyInfo,
     pub well: WellRow,
     pub column: Vec<ColumnRow>,
+    /// The analysis in the shape of the batch JSON contract (None if it failed).
+    pub analysis: Option<WellOut>,
+    /// The restored column at every age, youngest first.
+    pub restored: Vec<RestoredStepView>,
+    /// Why the well could not be analysed, in words a user can act on.
+    pub analysis_error: Option<String>,
+}
+
+fn restored_steps(a: &WellAnalysis) -> Vec<RestoredStepView> {
+    let h = &a.history;
+    h.steps
+        .iter()
+        .rev()
+        .map(|s| RestoredStepView {
+            age_ma: s.age_ma,
+            depositional_horizon: s.depositional_horizon.clone(),
+            units: s
+                .units
+                .iter()
+                .map(|u| RestoredUnitView {
+                    top_horizon: h.top_horizon(u).map(str::to_string).unwrap_or_else(|| format!("eroded section on {}", h.base_horizon(u))),
+                    base_horizon: h.base_horizon(u).to_string(),
+                    lithology: h.lithology(u).to_string(),
+                    top_m: u.top_m,
+                    base_m: u.base_m,
+                    thickness_m: u.base_m - u.top_m,
+                    mean_porosity: u.mean_porosity,
+                    density_kg_m3: u.density_kg_m3,
+                })
+                .collect(),
+        })
+        .collect()
+}
+
+/// Analyse a stored well off the async runtime.
+async fn analyse(state: &AppState, study_id: i64, well: &WellRow, surfaces: &[SurfaceRow]) -> Result<Result<WellAnalysis, String>, AppError> {
+    let inputs = match services::study_inputs(&state.db, study_id).await {
+        Ok(i) => i,
+        Err(ServiceError::Invalid(msg)) => return Ok(Err(msg)),
+        Err(e) => return Err(e.into()),
+    };
+    let column = match services::well_column(&well.name, surfaces) {
+        Ok(c) => c,
+        Err(e) => return Ok(Err(e.to_string())),
+    };
+    tokio::task::spawn_blocking(move || analysis::analyse_well(&column, &inputs).map_err(|e| e.to_string()))
+        .await
+        .map_err(|e| AppError::Internal(anyhow::anyhow!("analysis task failed: {e}")))
 }
 
 async fn well_view(state: &AppState, study_id: i64, well_id: i64) -> ApiResult<WellView> {
@@ -66,10 +137,17 @@ async fn well_view(state: &AppState, study_id: i64, well_id: i64) -> ApiResult<W
         .await?
         .ok_or_else(|| AppError::NotFound(format!("well {well_id} in study {study_id}")))?;
     let surfaces = store::wells::surfaces(&state.db, well_id).await?;
+    let (analysis, restored, analysis_error) = match analyse(state, study_id, &well, &surfaces).await? {
+        Ok(a) => (Some(analysis::well_out(&a)), restored_steps(&a), None),
+        Err(e) => (None, Vec::new(), Some(e)),
+    };
     Ok(WellView {
         study: StudyInfo::from(&study),
         well,
         column: column_rows(&surfaces),
+        analysis,
+        restored,
+        analysis_error,
     })
 }
 
