@@ -212,6 +212,12 @@ impl WellColumn {
                         s.horizon
                     )));
                 }
+                if s.depth_m != surfaces[i - 1].depth_m {
+                    return Err(bad(format!(
+                        "surface '{}' carries an erosion but lies at {} m, not at the depth of the surface above it ('{}', {} m): an erosional unconformity is two surfaces at one depth",
+                        s.horizon, s.depth_m, surfaces[i - 1].horizon, surfaces[i - 1].depth_m
+                    )));
+                }
                 let above_age = surfaces[i - 1].age_ma;
                 if !(e.eroded_at_ma < s.age_ma && e.eroded_at_ma > above_age) {
                     return Err(bad(format!(
