@@ -16,6 +16,8 @@ pub mod store;
 pub mod services;
 /// The demo study, built from the files in `demo-db/`.
 pub mod demo;
+/// Server-side SVG charts (subsidence, burial, heat flow, well map, rift timing): data in, SVG out.
+pub mod charts;
 /// The HTTP layer: routers per feature, pages and their JSON twins.
 pub mod web;
 /// Starting and stopping the web server.

@@ -1,0 +1,157 @@
+//! The heat-flow chart of the well page: surface heat flow through time from the
+//! stretching fit, against the equilibrium (pre-rift) heat flow.
+
+use super::ChartSize;
+use super::frame::{
+    Area, AxesSpec, DrawResult, LegendEntry, Swatch, age_axis, draw_axes, draw_legend,
+    draw_message, extent, number_label, plot_and_side, render,
+};
+use super::style::{DASH, HEAT, REFERENCE, phase_colour};
+use super::subsidence::{PhaseBand, draw_phase_bands, old_to_young};
+use super::svg::{Group, Tags};
+use plotters::prelude::*;
+
+/// Everything the heat-flow chart shows.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct HeatFlowChartData {
+    pub title: String,
+    /// (age Ma, surface heat flow mW/m²); any order.
+    pub heat_flow: Vec<(f64, f64)>,
+    /// The equilibrium surface heat flow of the unstretched lithosphere (mW/m²).
+    pub equilibrium_mw_m2: Option<f64>,
+    /// Rift phases to shade behind the curve (may be empty).
+    pub phases: Vec<PhaseBand>,
+}
+
+/// Draw the heat-flow chart as an SVG document.
+pub fn heat_flow_chart(data: &HeatFlowChartData, size: ChartSize) -> String {
+    render(size, &data.title, |body, tags| draw(data, body, tags))
+}
+
+fn draw(data: &HeatFlowChartData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
+    let curve = old_to_young(&data.heat_flow);
+    if curve.is_empty() {
+        return draw_message(
+            body,
+            tags,
+            "No heat flow to show: the well has no stretching fit yet.",
+        );
+    }
+    let equilibrium = data.equilibrium_mw_m2.filter(|v| v.is_finite());
+    let phases: Vec<&PhaseBand> = data
+        .phases
+        .iter()
+        .filter(|p| p.from_ma.is_finite() && p.to_ma.is_finite())
+        .collect();
+    let ages = curve
+        .iter()
+        .map(|p| p.0)
+        .chain(phases.iter().flat_map(|p| [p.from_ma, p.to_ma]));
+    let (_, highest) = extent(curve.iter().map(|p| p.1).chain(equilibrium)).unwrap_or((0.0, 1.0));
+    // Heat flow is positive: the axis starts at 0 so that changes are seen in proportion.
+    let top = if highest > 0.0 { highest * 1.12 } else { 1.0 };
+    let (plot, side) = plot_and_side(body);
+    let spec = AxesSpec {
+        x: age_axis(ages),
+        y: 0.0..top,
+        x_desc: "Age (Ma)",
+        y_desc: "Surface heat flow (mW/m²)",
+        y_label_area: 64,
+        y_ticks: true,
+    };
+    let mut chart = draw_axes(&plot, tags, &spec)?;
+    draw_phase_bands(&mut chart, &plot, tags, &phases)?;
+    if let Some(q) = equilibrium {
+        let x = chart.x_range();
+        let group = Group::new("equilibrium")
+            .attr("data-value", q)
+            .attr("stroke-dasharray", DASH)
+            .title(&format!("Equilibrium {} mW/m²", number_label(q)));
+        tags.open(&plot, group)?;
+        chart.draw_series(LineSeries::new(
+            [(x.start, q), (x.end, q)],
+            REFERENCE.stroke_width(2),
+        ))?;
+    }
+    tags.open(&plot, Group::new("heat-flow").title("Surface heat flow"))?;
+    let points = if curve.len() > 60 { 0 } else { 3 };
+    chart.draw_series(
+        LineSeries::new(curve.iter().copied(), HEAT.stroke_width(2)).point_size(points),
+    )?;
+    tags.close(&plot)?;
+
+    let mut entries = vec![LegendEntry::new("Heat flow (fit)", Swatch::Line(HEAT))];
+    if let Some(q) = equilibrium {
+        entries.push(LegendEntry::new(
+            format!("Equilibrium {} mW/m²", number_label(q)),
+            Swatch::DashedLine(REFERENCE),
+        ));
+    }
+    let below = draw_legend(&side, tags, "Series", &entries, 6)?;
+    if !phases.is_empty() {
+        let entries: Vec<LegendEntry> = phases
+            .iter()
+            .enumerate()
+            .map(|(i, p)| LegendEntry::new(p.name.clone(), Swatch::Fill(phase_colour(&p.name, i))))
+            .collect();
+        draw_legend(&side, tags, "Phases", &entries, below)?;
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::charts::test_support::*;
+
+    #[test]
+    fn the_equilibrium_line_sits_at_its_value() {
+        let data = sample_heat_flow();
+        let svg = heat_flow_chart(&data, ChartSize::default());
+        let doc = parse(&svg);
+        let y = y_axis_map(&doc);
+        let group = &groups(&doc, "equilibrium")[0];
+        assert!(
+            group.attribute("stroke-dasharray").is_some(),
+            "the reference line is dashed"
+        );
+        let line = first_child(group, "polyline");
+        let ys: Vec<f64> = line
+            .attribute("points")
+            .unwrap()
+            .split_whitespace()
+            .map(|p| p.split(',').nth(1).unwrap().parse().unwrap())
+            .collect();
+        for py in ys {
+            assert_close(
+                py,
+                y(data.equilibrium_mw_m2.unwrap()),
+                1.5,
+                "equilibrium line",
+            );
+        }
+        assert!(legend_labels(&doc).iter().any(|l| l.contains("mW/m²")));
+    }
+
+    #[test]
+    fn heat_flow_axis_has_units_and_time_runs_old_to_young() {
+        let svg = heat_flow_chart(&sample_heat_flow(), ChartSize::default());
+        let doc = parse(&svg);
+        assert!(axis_labels(&doc).contains(&"Surface heat flow (mW/m²)".to_string()));
+        let x = x_axis_map(&doc);
+        assert!(x(100.0) < x(10.0));
+        let y = y_axis_map(&doc);
+        assert!(
+            y(80.0) < y(40.0),
+            "higher heat flow lies higher on the page"
+        );
+        assert_eq!(groups(&doc, "heat-flow").len(), 1);
+        assert_legible(&doc);
+    }
+
+    #[test]
+    fn no_fit_gives_a_message() {
+        let svg = heat_flow_chart(&HeatFlowChartData::default(), ChartSize::default());
+        assert!(message(&parse(&svg)).contains("no stretching fit"));
+    }
+}

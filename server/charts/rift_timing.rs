@@ -1,0 +1,279 @@
+//! The rift-timing chart of the study overview: one bar per well from rift onset
+//! to rift end, oldest onset at the top, so that diachronous rifting shows at a glance.
+
+use super::ChartSize;
+use super::frame::{
+    Area, AxesSpec, DrawResult, LegendEntry, Swatch, TEXT_PX, age_axis, anchored, draw_axes,
+    draw_legend, draw_message, fit_text, font, number_label, padded, plot_and_side, render,
+    text_width, wrap_text,
+};
+use super::style::{INK, INK_SOFT, RIFT_BAR, with_alpha};
+use super::svg::{Group, Tags};
+use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, VPos};
+
+/// A well's fitted rift interval.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RiftTimingWell {
+    pub name: String,
+    /// Age at which rifting began (Ma).
+    pub rift_onset_ma: f64,
+    /// Age at which rifting ended (Ma).
+    pub rift_end_ma: f64,
+}
+
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct RiftTimingData {
+    pub title: String,
+    pub wells: Vec<RiftTimingWell>,
+    /// Names of the study's wells that have no stretching fit (listed in a note).
+    pub wells_without_fit: Vec<String>,
+}
+
+/// Closest spacing of well names on the y axis (px); denser rows name every k-th well.
+const NAME_GAP: f64 = 15.0;
+const BAR_COLOUR_ALPHA: f64 = 0.85;
+
+/// Draw the rift-timing chart as an SVG document.
+pub fn rift_timing_chart(data: &RiftTimingData, size: ChartSize) -> String {
+    render(size, &data.title, |body, tags| draw(data, body, tags))
+}
+
+fn draw(data: &RiftTimingData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
+    let mut wells: Vec<&RiftTimingWell> = data
+        .wells
+        .iter()
+        .filter(|w| w.rift_onset_ma.is_finite() && w.rift_end_ma.is_finite())
+        .collect();
+    if wells.is_empty() {
+        let message = if data.wells_without_fit.is_empty() {
+            "No wells in this study yet."
+        } else {
+            "No wells with a stretching fit yet."
+        };
+        return draw_message(body, tags, message);
+    }
+    // Oldest onset first (top row); ties by name so the order is stable.
+    wells.sort_by(|a, b| {
+        b.rift_onset_ma
+            .total_cmp(&a.rift_onset_ma)
+            .then_with(|| a.name.cmp(&b.name))
+    });
+    let rows = wells.len() as f64;
+
+    let (plot, side) = plot_and_side(body);
+    let longest = wells
+        .iter()
+        .map(|w| text_width(&w.name, TEXT_PX))
+        .fold(0.0, f64::max);
+    let name_room = longest.clamp(40.0, 160.0);
+    let (young, old) =
+        super::frame::extent(wells.iter().flat_map(|w| [w.rift_onset_ma, w.rift_end_ma]))
+            .unwrap_or((0.0, 1.0));
+    let (young, old) = padded(young, old, 0.05, 2.0);
+    let spec = AxesSpec {
+        // Ages are not negative: the padding stops at the present.
+        x: age_axis([young.max(0.0), old]),
+        y: rows..0.0,
+        x_desc: "Age (Ma)",
+        y_desc: "Well",
+        y_label_area: name_room as u32 + 34,
+        y_ticks: false,
+    };
+    let chart = draw_axes(&plot, tags, &spec)?;
+    let origin = plot.get_base_pixel();
+    let (x_px, y_px) = chart.plotting_area().get_pixel_range();
+    let pitch = f64::from(y_px.end - y_px.start) / rows;
+    let stride = (NAME_GAP / pitch.max(0.1)).ceil().max(1.0) as usize;
+
+    for (i, well) in wells.iter().enumerate() {
+        let row = i as f64;
+        let title = format!(
+            "{}: rift {}–{} Ma",
+            well.name,
+            number_label(well.rift_onset_ma),
+            number_label(well.rift_end_ma)
+        );
+        let group = Group::new("rift-interval")
+            .attr("data-name", &well.name)
+            .attr("data-onset-ma", well.rift_onset_ma)
+            .attr("data-end-ma", well.rift_end_ma)
+            .title(&title);
+        tags.open(&plot, group)?;
+        let (top, bottom) = (
+            row + 0.5 - bar_half_height(pitch),
+            row + 0.5 + bar_half_height(pitch),
+        );
+        let corners = |(left, up): (i32, i32), (right, down): (i32, i32)| {
+            [
+                (left - origin.0, up - origin.1),
+                (right - origin.0, down - origin.1),
+            ]
+        };
+        let a = chart.backend_coord(&(well.rift_onset_ma, top));
+        let b = chart.backend_coord(&(well.rift_end_ma, bottom));
+        let (left, right) = (a.0.min(b.0), a.0.max(b.0).max(a.0.min(b.0) + 2));
+        let rect = corners((left, a.1.min(b.1)), (right, a.1.max(b.1)));
+        plot.draw(&Rectangle::new(
+            rect,
+            with_alpha(RIFT_BAR, BAR_COLOUR_ALPHA).filled(),
+        ))?;
+        plot.draw(&Rectangle::new(rect, INK.stroke_width(1)))?;
+        if i % stride == 0 {
+            let (_, centre) = chart.backend_coord(&(well.rift_onset_ma, row + 0.5));
+            let at = (x_px.start - 8 - origin.0, centre - origin.1);
+            let name = fit_text(&well.name, name_room, TEXT_PX);
+            plot.draw(&Text::new(
+                name,
+                at,
+                anchored(font(TEXT_PX), HPos::Right, VPos::Center),
+            ))?;
+        }
+    }
+    tags.close(&plot)?;
+
+    let entries = [LegendEntry::new(
+        "Rift interval, onset to end",
+        Swatch::Fill(with_alpha(RIFT_BAR, BAR_COLOUR_ALPHA)),
+    )];
+    let below = draw_legend(&side, tags, "Wells by rift onset", &entries, 6)?;
+    if !data.wells_without_fit.is_empty() {
+        let (side_w, _) = side.dim_in_pixel();
+        let note = format!("No fit: {}", data.wells_without_fit.join(", "));
+        tags.open(
+            &side,
+            Group::new("note").attr("data-count", data.wells_without_fit.len()),
+        )?;
+        for (k, line) in wrap_text(&note, f64::from(side_w) - 16.0, TEXT_PX, 4)
+            .into_iter()
+            .enumerate()
+        {
+            side.draw(&Text::new(
+                line,
+                (8, below + 16 * k as i32),
+                font(TEXT_PX).color(&INK_SOFT),
+            ))?;
+        }
+        tags.close(&side)?;
+    }
+    Ok(())
+}
+
+/// Half a bar's height in row units: 30 % of the row, but at most 11 px tall overall.
+fn bar_half_height(pitch_px: f64) -> f64 {
+    (0.3_f64).min(11.0 / pitch_px.max(1.0))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::charts::test_support::*;
+
+    #[test]
+    fn one_bar_per_well_sorted_by_onset_spanning_its_ages() {
+        let data = sample_rift_timing();
+        let svg = rift_timing_chart(&data, ChartSize::default());
+        let doc = parse(&svg);
+        let bars = groups(&doc, "rift-interval");
+        assert_eq!(bars.len(), data.wells.len());
+        let onsets: Vec<f64> = bars.iter().map(|b| attr_f64(b, "data-onset-ma")).collect();
+        assert!(
+            onsets.windows(2).all(|p| p[0] >= p[1]),
+            "oldest onset first: {onsets:?}"
+        );
+        let x = x_axis_map(&doc);
+        let mut last_y = f64::NEG_INFINITY;
+        for bar in &bars {
+            let rect = first_child(bar, "rect");
+            let (left, width, y) = (
+                attr_f64(&rect, "x"),
+                attr_f64(&rect, "width"),
+                attr_f64(&rect, "y"),
+            );
+            assert_close(
+                left,
+                x(attr_f64(bar, "data-onset-ma")),
+                1.5,
+                "bar starts at the onset (old on the left)",
+            );
+            assert_close(
+                left + width,
+                x(attr_f64(bar, "data-end-ma")),
+                1.5,
+                "bar ends at the rift end",
+            );
+            assert!(y > last_y, "rows run down the page in order");
+            last_y = y;
+            let name = bar
+                .descendants()
+                .find(|n| n.has_tag_name("text"))
+                .map(|t| text_of(&t));
+            assert_eq!(
+                name.as_deref(),
+                bar.attribute("data-name"),
+                "well name on the y axis"
+            );
+        }
+        assert_legible(&doc);
+        assert!(axis_labels(&doc).contains(&"Age (Ma)".to_string()));
+    }
+
+    #[test]
+    fn wells_without_a_fit_are_listed_in_a_note() {
+        let svg = rift_timing_chart(&sample_rift_timing(), ChartSize::default());
+        let doc = parse(&svg);
+        let note = groups(&doc, "note")
+            .first()
+            .map(text_of)
+            .unwrap_or_default();
+        assert!(note.contains("Q-4"), "{note}");
+    }
+
+    #[test]
+    fn many_wells_keep_their_names_apart() {
+        let wells = (0..60)
+            .map(|i| RiftTimingWell {
+                name: format!("W-{i:02}"),
+                rift_onset_ma: 150.0 - f64::from(i) * 0.5,
+                rift_end_ma: 120.0 - f64::from(i) * 0.3,
+            })
+            .collect();
+        let svg = rift_timing_chart(
+            &RiftTimingData {
+                title: "Many".into(),
+                wells,
+                wells_without_fit: Vec::new(),
+            },
+            ChartSize::default(),
+        );
+        let doc = parse(&svg);
+        let mut ys: Vec<f64> = groups(&doc, "rift-interval")
+            .iter()
+            .filter_map(|g| {
+                g.descendants()
+                    .find(|n| n.has_tag_name("text"))
+                    .map(|t| attr_f64(&t, "y"))
+            })
+            .collect();
+        ys.sort_by(f64::total_cmp);
+        assert!(
+            ys.len() >= 10 && ys.len() < 60,
+            "every k-th well named: {}",
+            ys.len()
+        );
+        assert!(ys.windows(2).all(|p| p[1] - p[0] >= 13.0));
+    }
+
+    #[test]
+    fn no_fits_give_a_message() {
+        let data = RiftTimingData {
+            title: "None".into(),
+            wells: Vec::new(),
+            wells_without_fit: vec!["Q-4".into()],
+        };
+        let svg = rift_timing_chart(&data, ChartSize::default());
+        assert!(message(&parse(&svg)).contains("No wells with a stretching fit"));
+        let svg = rift_timing_chart(&RiftTimingData::default(), ChartSize::default());
+        assert!(message(&parse(&svg)).contains("No wells"));
+    }
+}

@@ -1,0 +1,153 @@
+//! The picks file: a rift onset and rift end chosen by hand for some wells, which
+//! the analysis uses instead of its own proposal.
+
+use super::columns::{ColumnMapping, Columns, FileKind};
+use super::problems::{InputProblem, Problems};
+use super::table::read_table;
+use serde::{Deserialize, Serialize};
+use std::collections::HashMap;
+use std::collections::hash_map::Entry;
+
+/// A well's rift interval as picked: onset older (larger Ma) than end.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RiftPick {
+    pub well: String,
+    pub rift_onset_ma: f64,
+    pub rift_end_ma: f64,
+}
+
+/// Read a picks file: `well`, `rift_onset_ma`, `rift_end_ma`, one row per well;
+/// both ages not negative and the onset older than the end. Other columns are ignored.
+pub fn parse_picks(bytes: &[u8]) -> Result<Vec<RiftPick>, Vec<InputProblem>> {
+    let mut problems = Problems::new(FileKind::Picks.default_file_name());
+    let Some(table) = read_table(bytes, &mut problems) else {
+        return Err(problems.finish());
+    };
+    let before = problems.count();
+    let columns = Columns::resolve(
+        FileKind::Picks,
+        &table.headers,
+        table.header_line,
+        &ColumnMapping::new(),
+        &mut problems,
+    );
+    if problems.count() > before {
+        return Err(problems.finish());
+    }
+    if table.rows.is_empty() {
+        problems.whole_file("the file has a header but no data rows");
+        return Err(problems.finish());
+    }
+    let (well, onset, end) = (
+        columns.field("well"),
+        columns.field("rift_onset_ma"),
+        columns.field("rift_end_ma"),
+    );
+    let mut picks = Vec::with_capacity(table.rows.len());
+    let mut first_line: HashMap<&str, usize> = HashMap::new();
+    for row in table.rows.iter().filter(|r| r.complete) {
+        let name = well.required_text(row, &mut problems);
+        let ages = [&onset, &end].map(|f| {
+            let age = f.required_number(row, &mut problems)?;
+            if age < 0.0 {
+                f.problem(
+                    row,
+                    &mut problems,
+                    format!("{age} Ma is negative; ages are millions of years before present"),
+                );
+                return None;
+            }
+            Some(age)
+        });
+        if let [Some(o), Some(e)] = ages
+            && o <= e
+        {
+            onset.problem(
+                row,
+                &mut problems,
+                format!("rift onset {o} Ma must be older (a larger age) than rift end {e} Ma"),
+            );
+            continue;
+        }
+        let Some(name) = name else { continue };
+        match first_line.entry(name) {
+            Entry::Occupied(first) => well.problem(
+                row,
+                &mut problems,
+                format!("well \"{name}\" already has a pick (line {})", first.get()),
+            ),
+            Entry::Vacant(v) => {
+                v.insert(row.line);
+            }
+        }
+        if let [Some(rift_onset_ma), Some(rift_end_ma)] = ages {
+            picks.push(RiftPick {
+                well: name.to_string(),
+                rift_onset_ma,
+                rift_end_ma,
+            });
+        }
+    }
+    problems.result(picks)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn picks_are_read() {
+        let picks =
+            parse_picks(b"Rift_End_Ma,well,RIFT_ONSET_MA\n140,Kestrel-1,165.5\n0,Plover-2,12\n")
+                .unwrap();
+        assert_eq!(
+            picks,
+            [
+                RiftPick {
+                    well: "Kestrel-1".into(),
+                    rift_onset_ma: 165.5,
+                    rift_end_ma: 140.0
+                },
+                RiftPick {
+                    well: "Plover-2".into(),
+                    rift_onset_ma: 12.0,
+                    rift_end_ma: 0.0
+                },
+            ]
+        );
+    }
+
+    #[test]
+    fn an_onset_younger_than_the_end_is_refused() {
+        let p = parse_picks(b"well,rift_onset_ma,rift_end_ma\nKestrel-1,140,165\n").unwrap_err();
+        assert_eq!(
+            (p[0].line, p[0].column.as_deref()),
+            (Some(2), Some("rift_onset_ma"))
+        );
+        assert_eq!(
+            p[0].reason,
+            "rift onset 140 Ma must be older (a larger age) than rift end 165 Ma"
+        );
+    }
+
+    #[test]
+    fn a_negative_age_is_refused() {
+        let p = parse_picks(b"well,rift_onset_ma,rift_end_ma\nKestrel-1,10,-2\n").unwrap_err();
+        assert_eq!(
+            (p[0].line, p[0].column.as_deref()),
+            (Some(2), Some("rift_end_ma"))
+        );
+    }
+
+    #[test]
+    fn a_second_pick_for_a_well_is_refused() {
+        let p =
+            parse_picks(b"well,rift_onset_ma,rift_end_ma\nKestrel-1,160,140\nKestrel-1,100,90\n")
+                .unwrap_err();
+        assert_eq!((p[0].line, p[0].column.as_deref()), (Some(3), Some("well")));
+        assert_eq!(
+            p[0].reason,
+            "well \"Kestrel-1\" already has a pick (line 2)"
+        );
+    }
+}
