@@ -134,7 +134,7 @@ async fn parameters_json(
 ) -> ApiResult<Json<CatalogueView>> {
     let study = load_study(&state, id).await?;
     let text: HashMap<String, String> = fields.into_iter().map(|(k, v)| (k, v.to_string())).collect();
-    let p = parse_parameters(study.parameters(), &text).map_err(|problems| AppError::BadRequest(problems.join("; ")))?;
+    let p = parse_parameters(study.parameters(), &text).map_err(|problems| AppError::Rejected(problems.join("; ")))?;
     services::update_parameters(&state.db, id, &p, LOCAL_ACTOR).await?;
     Ok(Json(catalogue_view(&state, id).await?))
 }

@@ -14,6 +14,9 @@ pub enum AppError {
     /// The request is malformed; the text says what to fix.
     #[error("{0}")]
     BadRequest(String),
+    /// A well-formed request whose values fail validation; the text says which and why.
+    #[error("{0}")]
+    Rejected(String),
     /// An input file or form failed validation; every problem is listed.
     #[error("the input has {} problem(s)", .0.len())]
     Invalid(Vec<InputProblem>),
@@ -36,7 +39,7 @@ impl From<crate::services::ServiceError> for AppError {
         use crate::services::ServiceError as S;
         match e {
             S::NotFound(what) => AppError::NotFound(what),
-            S::Invalid(msg) => AppError::BadRequest(msg),
+            S::Invalid(msg) => AppError::Rejected(msg),
             S::Problems(p) => AppError::Invalid(p),
             S::Conflict(msg) => AppError::Conflict(msg),
             S::Database(e) => AppError::Database(e),
@@ -49,7 +52,7 @@ impl AppError {
         match self {
             AppError::NotFound(_) => StatusCode::NOT_FOUND,
             AppError::BadRequest(_) => StatusCode::BAD_REQUEST,
-            AppError::Invalid(_) => StatusCode::UNPROCESSABLE_ENTITY,
+            AppError::Invalid(_) | AppError::Rejected(_) => StatusCode::UNPROCESSABLE_ENTITY,
             AppError::Conflict(_) => StatusCode::CONFLICT,
             AppError::TooLarge(_) => StatusCode::PAYLOAD_TOO_LARGE,
             AppError::Database(_) | AppError::Template(_) | AppError::Internal(_) => {

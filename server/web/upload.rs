@@ -149,10 +149,10 @@ fn upload_options(fields: &HashMap<String, String>, staged: Option<&StagedUpload
             if let Some(header) = staged_header(s.tops.as_ref(), index) {
                 tops_map = tops_map.with(&header, column);
             }
-        } else if let (Some(index), Some(s)) = (key.strip_prefix("wells_col_"), staged) {
-            if let Some(header) = staged_header(s.wells.as_ref(), index) {
-                wells_map = wells_map.with(&header, column);
-            }
+        } else if let (Some(index), Some(s)) = (key.strip_prefix("wells_col_"), staged)
+            && let Some(header) = staged_header(s.wells.as_ref(), index)
+        {
+            wells_map = wells_map.with(&header, column);
         }
     }
     Ok(UploadOptions {
@@ -215,14 +215,17 @@ async fn tops_api(State(state): State<AppState>, Path(id): Path<i64>, multipart:
         let answer = TopsApiAnswer { stored: false, wells, existing_wells: existing, notes: upload.notes(), outcome: None };
         return Ok(Json(answer).into_response());
     }
-    if !existing.is_empty() && !truthy(fields.get("replace")) {
+    let replace = truthy(fields.get("replace"));
+    if !existing.is_empty() && !replace {
         let body = serde_json::json!({
             "error": format!("{} well(s) already exist in this study; send replace=true to replace them.", existing.len()),
             "existing_wells": existing,
         });
         return Ok((StatusCode::CONFLICT, Json(body)).into_response());
     }
-    let outcome = import::store_upload(&state.db, id, &upload, true, LOCAL_ACTOR).await?;
+    // The store step checks again inside its transaction: a well added by another
+    // upload since the check above is refused, not silently replaced.
+    let outcome = import::store_upload(&state.db, id, &upload, replace, LOCAL_ACTOR).await?;
     let answer = TopsApiAnswer { stored: true, wells, existing_wells: existing, notes: outcome.notes.clone(), outcome: Some(outcome) };
     Ok(Json(answer).into_response())
 }
@@ -239,8 +242,9 @@ async fn upload_form(State(state): State<AppState>, Path(id): Path<i64>, multipa
     let staged_file = |f: Option<NamedFile>| f.map(|f| StagedFile { file_name: f.file_name, bytes: f.bytes });
     let token = state.staging.put(StagedUpload::new(id, staged_file(files.tops), staged_file(files.wells), staged_file(files.sea_level)));
     let mut query = String::new();
-    if let Some(unit) = fields.get("depth_unit").filter(|u| !u.is_empty()) {
-        query = format!("?depth_unit={unit}");
+    // Only the known unit words travel in the URL; anything else was refused above.
+    if let Some(unit) = parse_unit(fields.get("depth_unit"), "depth_unit")? {
+        query = format!("?depth_unit={}", if unit == DepthUnit::Feet { "feet" } else { "metres" });
     }
     Ok(Redirect::to(&format!("/studies/{id}/upload/{token}{query}")).into_response())
 }
@@ -279,7 +283,8 @@ async fn preview_view(state: &AppState, id: i64, token: &str, fields: &HashMap<S
     let staged = state
         .staging
         .get(token, id)
-        .ok_or_else(|| AppError::NotFound("this upload (it may have expired after an hour; upload the files again)".into()))?;
+        // Read as "this upload not found": held uploads expire after an hour (staging.rs).
+        .ok_or_else(|| AppError::NotFound("this upload".into()))?;
     let options = upload_options(fields, Some(&staged))?;
     let mut files = Vec::new();
     for (field, kind) in FILE_FIELDS {
