@@ -187,7 +187,13 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
             b.inc(1);
         }
     };
-    let results = analysis::analyse_wells(&tops.wells, &inputs, &tick);
+    let timing = |well: &str| {
+        picks
+            .iter()
+            .find(|p| p.well == well)
+            .map(|p| vec![(p.rift_onset_ma, p.rift_end_ma)])
+    };
+    let results = analysis::analyse_wells(&tops.wells, &inputs, &timing, &tick);
     if let Some(b) = bar {
         b.finish_and_clear();
     }

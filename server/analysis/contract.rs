@@ -68,9 +68,42 @@ pub struct HeatFlowPoint {
     pub value: f64,
 }
 
+/// The uniform-stretching (McKenzie 1978) fit. `beta` is the cumulative factor (the
+/// product over rift events); onset is the first event's, end the last event's.
 #[derive(Debug, Clone, Serialize)]
 pub struct StretchingOut {
     pub model: &'static str,
+    pub beta: f64,
+    pub beta_min: f64,
+    pub beta_max: f64,
+    pub rift_onset_ma: f64,
+    pub rift_end_ma: f64,
+    pub rms_misfit_m: f64,
+    /// Surface heat flow of the fitted model at every history age.
+    pub heat_flow_mw_m2: Vec<HeatFlowPoint>,
+    /// Extension: "proposed" by the phase search, or "team pick".
+    pub origin: &'static str,
+    /// Extension: each rift event (one or two).
+    pub rift_events: Vec<RiftEventOut>,
+    /// Extension: the two-layer (crust delta, mantle beta) fit beside the uniform one.
+    pub two_layer: Option<TwoLayerOut>,
+}
+
+#[derive(Debug, Clone, Copy, Serialize)]
+pub struct RiftEventOut {
+    pub rift_onset_ma: f64,
+    pub rift_end_ma: f64,
+    pub beta: f64,
+}
+
+/// The two-layer fit (Royden & Keen 1980 geometry): crust thinned by delta, mantle
+/// lithosphere by beta.
+#[derive(Debug, Clone, Serialize)]
+pub struct TwoLayerOut {
+    pub model: &'static str,
+    pub delta: f64,
+    pub delta_min: f64,
+    pub delta_max: f64,
     pub beta: f64,
     pub beta_min: f64,
     pub beta_max: f64,
@@ -87,4 +120,7 @@ pub struct WellOut {
     pub history: Vec<HistoryOut>,
     pub phases: Vec<PhaseOut>,
     pub stretching: Option<StretchingOut>,
+    /// Extension: why there is no stretching fit, when there is none.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub fit_note: Option<String>,
 }

@@ -5,9 +5,17 @@
 pub mod contract;
 
 use crate::science::backstrip::{self, WellHistory};
+use crate::science::fit::SubsidenceObservation;
+use crate::science::heat_flow::{self, HeatFlowPoint};
 use crate::science::lithology::Catalogue;
+use crate::science::mckenzie::Lithosphere;
+use crate::science::phases::{self, PhaseProposal};
+use crate::science::uncertainty::{self, MonteCarloSettings, StretchingUncertainty};
 use crate::science::{ModelParameters, ScienceError, SeaLevelCurve, WellColumn};
-use contract::{HistoryOut, LithologyOut, ParametersOut, RangeOut, Report, WellOut};
+use contract::{
+    HistoryOut, LithologyOut, ParametersOut, PhaseOut, RangeOut, Report, RiftEventOut, StretchingOut, TwoLayerOut,
+    WellOut,
+};
 use rayon::prelude::*;
 use std::collections::BTreeMap;
 
@@ -19,28 +27,119 @@ pub struct StudyInputs {
     pub sea_level: SeaLevelCurve,
 }
 
+/// Step of the regular heat-flow and model-curve grid (Myr).
+pub const GRID_STEP_MYR: f64 = 1.0;
+
+/// Seed and size of the Monte-Carlo draw over the palaeo-water-depth ranges. A fixed
+/// seed makes every run of the same inputs give the same ranges.
+pub const MONTE_CARLO: MonteCarloSettings = MonteCarloSettings { draws: 200, seed: 20_261_201 };
+
+/// The team's rift timing for a well: one or two (onset, end) pairs in Ma, oldest first.
+pub type RiftTiming = Vec<(f64, f64)>;
+
+/// The stretching interpretation of a well's tectonic subsidence.
+#[derive(Debug, Clone)]
+pub struct Interpretation {
+    /// Phases and fits: proposed by the search, or refitted to the team's timing.
+    pub proposal: PhaseProposal,
+    /// Ranges of the factors (None when no rift was found).
+    pub uncertainty: Option<StretchingUncertainty>,
+    /// Uniform-model heat flow at every history age (equilibrium when there is no rift).
+    pub heat_flow_at_ages: Vec<HeatFlowPoint>,
+    /// The same on a regular grid, oldest first.
+    pub heat_flow_grid: Vec<HeatFlowPoint>,
+    /// Two-layer heat flow at every history age (when there is a two-layer fit).
+    pub two_layer_heat_flow_at_ages: Vec<HeatFlowPoint>,
+    /// The fitted model's tectonic subsidence on the regular grid: (age, m).
+    pub model_curve: Vec<(f64, f64)>,
+    /// Equilibrium surface heat flow K T1 / a (mW/m²).
+    pub equilibrium_heat_flow_mw_m2: f64,
+}
+
 /// The full analysis of one well.
 #[derive(Debug, Clone)]
 pub struct WellAnalysis {
     pub history: WellHistory,
+    /// The fit, or why there is none (too few ages, or a pick outside the well's ages).
+    pub interpretation: Result<Interpretation, String>,
 }
 
-/// Analyse one well. Pure and CPU-bound.
-pub fn analyse_well(well: &WellColumn, inputs: &StudyInputs) -> Result<WellAnalysis, ScienceError> {
+/// The tectonic-subsidence series the fits use, oldest first.
+pub fn observations(history: &WellHistory) -> Vec<SubsidenceObservation> {
+    history
+        .steps
+        .iter()
+        .map(|s| SubsidenceObservation { age_ma: s.age_ma, tectonic_subsidence: s.tectonic_subsidence })
+        .collect()
+}
+
+/// Fit the stretching models to a backstripped history.
+pub fn interpret(history: &WellHistory, params: &ModelParameters, timing: Option<&[(f64, f64)]>) -> Result<Interpretation, ScienceError> {
+    let lithosphere = Lithosphere::water_loaded(params)?;
+    let obs = observations(history);
+    let proposal = match timing {
+        Some(t) if !t.is_empty() => phases::phases_from_picks(&lithosphere, &obs, t)?,
+        _ => phases::propose_phases(&lithosphere, &obs)?,
+    };
+    let uncertainty = match &proposal.uniform {
+        Some(fit) => Some(uncertainty::stretching_uncertainty(&lithosphere, &obs, fit, proposal.two_layer.as_ref(), MONTE_CARLO)?),
+        None => None,
+    };
+    let ages: Vec<f64> = obs.iter().map(|o| o.age_ma).collect();
+    let oldest = ages[0];
+    let youngest = ages[ages.len() - 1];
+    let grid = heat_flow::regular_ages(oldest, youngest, GRID_STEP_MYR)?;
+    let equilibrium = lithosphere.equilibrium_heat_flow_mw_m2();
+    let flat = |ages: &[f64]| ages.iter().map(|&age_ma| HeatFlowPoint { age_ma, value: equilibrium }).collect::<Vec<_>>();
+    let (heat_flow_at_ages, heat_flow_grid, model_curve) = match &proposal.uniform {
+        Some(fit) => (
+            heat_flow::uniform_heat_flow_history(&lithosphere, fit, &ages),
+            heat_flow::uniform_heat_flow_history(&lithosphere, fit, &grid),
+            grid.iter().map(|&a| (a, fit.subsidence_m(&lithosphere, a))).collect(),
+        ),
+        None => {
+            let line = &proposal.no_rift;
+            let curve = grid.iter().map(|&a| (a, line.subsidence_at_oldest_m + line.rate_m_per_myr * (oldest - a))).collect();
+            (flat(&ages), flat(&grid), curve)
+        }
+    };
+    let two_layer_heat_flow_at_ages = proposal
+        .two_layer
+        .as_ref()
+        .map(|f| heat_flow::two_layer_heat_flow_history(&lithosphere, f, &ages))
+        .unwrap_or_default();
+    Ok(Interpretation {
+        proposal,
+        uncertainty,
+        heat_flow_at_ages,
+        heat_flow_grid,
+        two_layer_heat_flow_at_ages,
+        model_curve,
+        equilibrium_heat_flow_mw_m2: equilibrium,
+    })
+}
+
+/// Analyse one well: backstrip, then fit (with the team's timing when given). Pure and
+/// CPU-bound. A well that cannot be backstripped is an error; a well that cannot be
+/// fitted keeps its history and says why.
+pub fn analyse_well(well: &WellColumn, inputs: &StudyInputs, timing: Option<&[(f64, f64)]>) -> Result<WellAnalysis, ScienceError> {
     let history = backstrip::backstrip(well, &inputs.catalogue, &inputs.params, &inputs.sea_level)?;
-    Ok(WellAnalysis { history })
+    let interpretation = interpret(&history, &inputs.params, timing).map_err(|e| e.to_string());
+    Ok(WellAnalysis { history, interpretation })
 }
 
 /// Analyse many wells on all cores, calling `progress` after each. Results keep the input order.
 pub fn analyse_wells(
     wells: &[WellColumn],
     inputs: &StudyInputs,
+    timings: &(dyn Fn(&str) -> Option<RiftTiming> + Sync),
     progress: &(dyn Fn() + Sync),
 ) -> Vec<Result<WellAnalysis, ScienceError>> {
     wells
         .par_iter()
         .map(|w| {
-            let r = analyse_well(w, inputs);
+            let timing = timings(&w.name);
+            let r = analyse_well(w, inputs, timing.as_deref());
             progress();
             r
         })
@@ -98,9 +197,68 @@ pub fn well_out(a: &WellAnalysis) -> WellOut {
                 total_subsidence_m: s.total_subsidence_m,
             })
             .collect(),
-        phases: Vec::new(),
-        stretching: None,
+        phases: a
+            .interpretation
+            .as_ref()
+            .map(|i| {
+                i.proposal
+                    .intervals
+                    .iter()
+                    .map(|p| PhaseOut { phase: p.phase.label(), from_ma: p.from_ma, to_ma: p.to_ma })
+                    .collect()
+            })
+            .unwrap_or_default(),
+        stretching: a.interpretation.as_ref().ok().and_then(stretching_out),
+        fit_note: match &a.interpretation {
+            Ok(i) if i.proposal.uniform.is_none() => Some("no rift: the subsidence is best explained without stretching".into()),
+            Ok(_) => None,
+            Err(e) => Some(format!("no fit: {e}")),
+        },
     }
+}
+
+fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
+    let fit = i.proposal.uniform.as_ref()?;
+    let first = fit.events.first()?;
+    let last = fit.events.last()?;
+    let spread = i.uncertainty.as_ref().map(|u| u.beta);
+    let beta = fit.cumulative_beta();
+    let two_layer = i.proposal.two_layer.as_ref().map(|t| {
+        let u = i.uncertainty.as_ref();
+        TwoLayerOut {
+            model: "two-layer",
+            delta: t.delta,
+            delta_min: u.and_then(|u| u.two_layer_delta).map(|s| s.min()).unwrap_or(t.delta),
+            delta_max: u.and_then(|u| u.two_layer_delta).map(|s| s.max()).unwrap_or(t.delta),
+            beta: t.beta,
+            beta_min: u.and_then(|u| u.two_layer_beta).map(|s| s.min()).unwrap_or(t.beta),
+            beta_max: u.and_then(|u| u.two_layer_beta).map(|s| s.max()).unwrap_or(t.beta),
+            rift_onset_ma: t.rift_onset_ma,
+            rift_end_ma: t.rift_end_ma,
+            rms_misfit_m: t.rms_misfit_m,
+            heat_flow_mw_m2: i.two_layer_heat_flow_at_ages.iter().map(|p| contract::HeatFlowPoint { age_ma: p.age_ma, value: p.value }).collect(),
+        }
+    });
+    Some(StretchingOut {
+        model: "uniform",
+        beta,
+        beta_min: spread.map(|s| s.min()).unwrap_or(beta),
+        beta_max: spread.map(|s| s.max()).unwrap_or(beta),
+        rift_onset_ma: first.rift_onset_ma,
+        rift_end_ma: last.rift_end_ma,
+        rms_misfit_m: fit.rms_misfit_m,
+        heat_flow_mw_m2: i.heat_flow_at_ages.iter().map(|p| contract::HeatFlowPoint { age_ma: p.age_ma, value: p.value }).collect(),
+        origin: match i.proposal.origin {
+            phases::PickOrigin::Proposed => "proposed",
+            phases::PickOrigin::Team => "team pick",
+        },
+        rift_events: fit
+            .events
+            .iter()
+            .map(|e| RiftEventOut { rift_onset_ma: e.rift_onset_ma, rift_end_ma: e.rift_end_ma, beta: e.beta })
+            .collect(),
+        two_layer,
+    })
 }
 
 /// A well that could not be analysed still appears, with its reason as a warning.
@@ -111,6 +269,7 @@ pub fn failed_well_out(name: &str, error: &ScienceError) -> WellOut {
         history: Vec::new(),
         phases: Vec::new(),
         stretching: None,
+        fit_note: None,
     }
 }
 

@@ -126,7 +126,7 @@ async fn analyse(state: &AppState, study_id: i64, well: &WellRow, surfaces: &[Su
         Ok(c) => c,
         Err(e) => return Ok(Err(e.to_string())),
     };
-    tokio::task::spawn_blocking(move || analysis::analyse_well(&column, &inputs).map_err(|e| e.to_string()))
+    tokio::task::spawn_blocking(move || analysis::analyse_well(&column, &inputs, None).map_err(|e| e.to_string()))
         .await
         .map_err(|e| AppError::Internal(anyhow::anyhow!("analysis task failed: {e}")))
 }

@@ -1,0 +1,34 @@
+//! The science core: pure computation, no I/O, no async, no database.
+//!
+//! Everything here takes validated inputs and returns named result structs.
+//! Units are SI unless a name says otherwise (`_km`, `_ma`, `_myr`, `_mw_m2`).
+//! Depth is positive downward; ages are in Ma (millions of years before present).
+
+pub mod backstrip;
+pub mod burial;
+pub mod column;
+pub mod decompaction;
+pub mod error;
+pub mod fit;
+pub mod forward;
+pub mod heat_flow;
+pub mod lithology;
+pub mod mckenzie;
+pub mod params;
+pub mod phases;
+pub mod search1d;
+pub mod tolerance;
+pub mod two_layer;
+pub mod uncertainty;
+
+pub use column::{
+    Bounds, Erosion, LithologyMix, MixPart, SeaLevelCurve, SeaLevelPoint, Surface, WaterDepth,
+    WellColumn,
+};
+pub use error::ScienceError;
+pub use params::ModelParameters;
+
+/// Standard gravity (m s^-2); SCIENCE.md section 0.
+pub const GRAVITY_M_S2: f64 = 9.81;
+/// One million Julian years in seconds (SCIENCE.md section 0).
+pub const SECONDS_PER_MYR: f64 = 3.15576e13;

@@ -1,0 +1,205 @@
+use super::*;
+use crate::science::Bounds;
+use crate::science::fit::RiftEvent;
+use crate::science::fit::tests::{classifier_curve, exact, mckenzie};
+use crate::science::tolerance::assert_relative;
+
+/// Irregular surface ages from `oldest` to 0 Ma (deterministic spacing 2-8 Myr, plus
+/// the given ages), oldest first.
+fn surface_ages(oldest: f64, must: &[f64]) -> Vec<f64> {
+    let mut ages = vec![0.0, oldest];
+    let (mut age, mut k) = (0.0, 0u32);
+    loop {
+        k += 1;
+        age += 2.0 + 6.0 * (((k * 7919) % 13) as f64 / 12.0);
+        if age >= oldest - 0.5 {
+            break;
+        }
+        let age = (age * 10.0f64).round() / 10.0;
+        if must.iter().all(|m| (age - m).abs() >= 0.5) {
+            ages.push(age);
+        }
+    }
+    ages.extend(must);
+    ages.sort_by(|a, b| b.total_cmp(a));
+    ages.dedup();
+    ages
+}
+
+fn sampled(fit: &UniformFit, ages: &[f64]) -> Vec<SubsidenceObservation> {
+    let l = mckenzie();
+    ages.iter()
+        .map(|&a| exact(a, fit.subsidence_m(&l, a)))
+        .collect()
+}
+
+fn one_event(onset: f64, end: f64, beta: f64, y0: f64) -> UniformFit {
+    UniformFit {
+        events: vec![RiftEvent {
+            rift_onset_ma: onset,
+            rift_end_ma: end,
+            beta,
+        }],
+        pre_rift_subsidence_m: y0,
+        rms_misfit_m: 0.0,
+    }
+}
+
+#[test]
+fn the_classifier_curve_is_split_at_150_and_130_ma_with_beta_two() {
+    // SCIENCE.md 8.2 synthetic classifier curve: onset 150, end 130 Ma, beta 2.
+    let l = mckenzie();
+    let p = propose_phases(&l, &classifier_curve()).unwrap();
+    let fit = p.uniform.as_ref().expect("a rift");
+    assert_eq!(fit.events.len(), 1, "{:?}", fit.events);
+    assert_eq!(
+        (fit.events[0].rift_onset_ma, fit.events[0].rift_end_ma),
+        (150.0, 130.0)
+    );
+    assert_relative(fit.events[0].beta, 2.0, 1e-5, "beta");
+    let phases: Vec<_> = p
+        .intervals
+        .iter()
+        .map(|i| (i.phase, i.from_ma, i.to_ma))
+        .collect();
+    assert_eq!(
+        phases,
+        vec![
+            (Phase::PreRift, 200.0, 150.0),
+            (Phase::SynRift, 150.0, 130.0),
+            (Phase::PostRift, 130.0, 0.0)
+        ]
+    );
+    // The curve is uniform stretching, so the two-layer fit finds delta = beta = 2.
+    let two = p.two_layer.expect("two-layer fit");
+    assert_relative(two.delta, 2.0, 1e-3, "delta");
+    assert_relative(two.beta, 2.0, 1e-3, "two-layer beta");
+    assert_eq!(p.origin, PickOrigin::Proposed);
+}
+
+#[test]
+fn model_curves_across_beta_and_rift_duration_are_recovered_exactly() {
+    // Model curves sampled at irregular surface ages (the forward-model wells are in
+    // forward.rs): beta 1.2-3, rift durations 5-25 Myr.
+    let l = mckenzie();
+    for (beta, onset, end) in [
+        (1.2, 150.0, 145.0),
+        (1.5, 160.0, 140.0),
+        (2.0, 120.0, 110.0),
+        (2.5, 170.0, 145.0),
+        (3.0, 100.0, 90.0),
+    ] {
+        let truth = one_event(onset, end, beta, 150.0);
+        let curve = sampled(&truth, &surface_ages(220.0, &[onset, end]));
+        let p = propose_phases(&l, &curve).unwrap();
+        let fit = p.uniform.expect("a rift");
+        assert_eq!(fit.events.len(), 1, "beta {beta}: {:?}", fit.events);
+        let e = fit.events[0];
+        assert_eq!(
+            (e.rift_onset_ma, e.rift_end_ma),
+            (onset, end),
+            "beta {beta}"
+        );
+        assert_relative(e.beta, beta, 1e-4, "beta");
+    }
+}
+
+#[test]
+fn a_well_without_rapid_subsidence_gets_no_rift() {
+    let l = mckenzie();
+    // Flat, with +-15 m of deterministic scatter (a sawtooth, not a trend).
+    let ages = surface_ages(200.0, &[]);
+    let flat: Vec<_> = ages
+        .iter()
+        .enumerate()
+        .map(|(i, &a)| exact(a, 300.0 + 15.0 * (((i * 37) % 7) as f64 / 3.0 - 1.0)))
+        .collect();
+    let p = propose_phases(&l, &flat).unwrap();
+    assert!(p.uniform.is_none(), "{:?}", p.uniform);
+    assert_eq!(
+        p.intervals,
+        vec![PhaseInterval {
+            phase: Phase::PreRift,
+            from_ma: 200.0,
+            to_ma: 0.0
+        }]
+    );
+    // Steady slow subsidence (3 m/Myr) is a line, not a rift.
+    let line: Vec<_> = ages.iter().map(|&a| exact(a, 3.0 * (200.0 - a))).collect();
+    let p = propose_phases(&l, &line).unwrap();
+    assert!(p.uniform.is_none(), "{:?}", p.uniform);
+    assert_relative(p.no_rift.rate_m_per_myr, 3.0, 1e-9, "rate");
+}
+
+#[test]
+fn two_separate_rift_events_are_found() {
+    let l = mckenzie();
+    let truth = UniformFit {
+        events: vec![
+            RiftEvent {
+                rift_onset_ma: 200.0,
+                rift_end_ma: 185.0,
+                beta: 1.5,
+            },
+            RiftEvent {
+                rift_onset_ma: 80.0,
+                rift_end_ma: 70.0,
+                beta: 1.8,
+            },
+        ],
+        pre_rift_subsidence_m: 0.0,
+        rms_misfit_m: 0.0,
+    };
+    let curve = sampled(&truth, &surface_ages(240.0, &[200.0, 185.0, 80.0, 70.0]));
+    let p = propose_phases(&l, &curve).unwrap();
+    let fit = p.uniform.expect("a rift");
+    let timing: Vec<_> = fit
+        .events
+        .iter()
+        .map(|e| (e.rift_onset_ma, e.rift_end_ma))
+        .collect();
+    assert_eq!(timing, vec![(200.0, 185.0), (80.0, 70.0)]);
+    assert_relative(fit.cumulative_beta(), 1.5 * 1.8, 1e-3, "cumulative beta");
+    assert!(p.two_layer.is_none());
+    assert_eq!(p.intervals.len(), 5);
+}
+
+#[test]
+fn the_teams_pick_replaces_the_proposal() {
+    let l = mckenzie();
+    let p = phases_from_picks(&l, &classifier_curve(), &[(160.0, 130.0)]).unwrap();
+    assert_eq!(p.origin, PickOrigin::Team);
+    let fit = p.uniform.unwrap();
+    assert_eq!(
+        (fit.events[0].rift_onset_ma, fit.events[0].rift_end_ma),
+        (160.0, 130.0)
+    );
+    assert!(fit.rms_misfit_m > 1.0, "a worse pick fits worse");
+    assert_eq!(
+        p.intervals[0],
+        PhaseInterval {
+            phase: Phase::PreRift,
+            from_ma: 200.0,
+            to_ma: 160.0
+        }
+    );
+    assert!(phases_from_picks(&l, &classifier_curve(), &[(260.0, 130.0)]).is_err());
+}
+
+#[test]
+fn a_pick_off_the_surface_ages_is_fitted_too() {
+    let l = mckenzie();
+    let p = phases_from_picks(&l, &classifier_curve(), &[(152.5, 131.0)]).unwrap();
+    assert!(p.uniform.unwrap().events[0].beta > 1.5);
+    let ranged: Vec<_> = classifier_curve()
+        .into_iter()
+        .map(|o| SubsidenceObservation {
+            tectonic_subsidence: Bounds {
+                min: 0.0,
+                ..o.tectonic_subsidence
+            },
+            ..o
+        })
+        .collect();
+    assert!(propose_phases(&l, &ranged).is_ok());
+}

@@ -1,0 +1,275 @@
+//! Ranges on the stretching factors from the palaeo-water-depth (PWD) uncertainty.
+//!
+//! Two measures, both with the rift timing held fixed:
+//! * the factors fitted to the min and to the max tectonic-subsidence curves (every
+//!   point at the shallow, or the deep, end of its PWD range at once);
+//! * a seeded Monte-Carlo draw: each point's tectonic subsidence drawn uniformly in
+//!   [min, max], independently, the factors refitted per draw, and the 5th and 95th
+//!   percentiles reported (PRODUCT.md "Computation" 4; SCIENCE.md 9.1: PWD bounds pass
+//!   into Y one-for-one).
+//!
+//! The same seed gives the same draws on every machine (rand's `StdRng`).
+
+use super::ScienceError;
+use super::fit::{
+    FitProblem, ModelKind, SubsidenceCurve, SubsidenceObservation, TwoLayerFit, UniformFit,
+    check_observations, fit_two_layer, fit_uniform_events,
+};
+use super::mckenzie::Lithosphere;
+use rand::rngs::StdRng;
+use rand::{RngExt, SeedableRng};
+use serde::{Deserialize, Serialize};
+
+/// How many Monte-Carlo draws, from which seed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub struct MonteCarloSettings {
+    pub draws: usize,
+    pub seed: u64,
+}
+
+impl Default for MonteCarloSettings {
+    /// 200 draws (PRODUCT.md), seed 1.
+    fn default() -> Self {
+        MonteCarloSettings {
+            draws: 200,
+            seed: 1,
+        }
+    }
+}
+
+/// The spread of one stretching factor.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct FactorSpread {
+    /// Factor fitted to the min tectonic-subsidence curve (the smaller of the two fits).
+    pub curve_min: f64,
+    /// Factor fitted to the max curve (the larger of the two fits).
+    pub curve_max: f64,
+    /// 5th percentile of the Monte-Carlo draws.
+    pub p05: f64,
+    /// 95th percentile of the Monte-Carlo draws.
+    pub p95: f64,
+}
+
+impl FactorSpread {
+    /// Lower end of the reported range: the smaller of `curve_min` and `p05`.
+    pub fn min(&self) -> f64 {
+        self.curve_min.min(self.p05)
+    }
+
+    /// Upper end of the reported range: the larger of `curve_max` and `p95`.
+    pub fn max(&self) -> f64 {
+        self.curve_max.max(self.p95)
+    }
+}
+
+/// Ranges on the uniform (cumulative) beta and, for a single-event well, on the
+/// two-layer delta and beta.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct StretchingUncertainty {
+    pub beta: FactorSpread,
+    pub two_layer_delta: Option<FactorSpread>,
+    pub two_layer_beta: Option<FactorSpread>,
+    pub settings: MonteCarloSettings,
+}
+
+/// Ranges for a fitted well. `uniform` is the chosen fit (one or two events) and
+/// `two_layer` its two-layer companion; their timings are held. Errors: a fit without
+/// a rift event, zero draws, or a series that [`check_observations`] refuses.
+pub fn stretching_uncertainty(
+    lithosphere: &Lithosphere,
+    observations: &[SubsidenceObservation],
+    uniform: &UniformFit,
+    two_layer: Option<&TwoLayerFit>,
+    settings: MonteCarloSettings,
+) -> Result<StretchingUncertainty, ScienceError> {
+    check_observations(observations)?;
+    if uniform.events.is_empty() {
+        return Err(ScienceError::CannotFit(
+            "no rift event to put a range on".into(),
+        ));
+    }
+    if settings.draws == 0 {
+        return Err(ScienceError::CannotFit(
+            "the Monte-Carlo draw needs at least one draw".into(),
+        ));
+    }
+    let timings: Vec<(f64, f64)> = uniform
+        .events
+        .iter()
+        .map(|e| (e.rift_onset_ma, e.rift_end_ma))
+        .collect();
+    let curve_beta =
+        |c| fit_uniform_events(lithosphere, observations, c, &timings).map(|f| f.cumulative_beta());
+    let (b_lo, b_hi) = (
+        curve_beta(SubsidenceCurve::Min)?,
+        curve_beta(SubsidenceCurve::Max)?,
+    );
+
+    let ages: Vec<f64> = observations.iter().map(|o| o.age_ma).collect();
+    let mut uniform_problem = FitProblem::new(lithosphere, &ages, &timings);
+    let uniform_start: Vec<f64> = uniform.events.iter().map(|e| 1.0 - 1.0 / e.beta).collect();
+    let mut two_layer_problem = two_layer.map(|t| {
+        let start = [1.0 - 1.0 / t.delta, 1.0 - 1.0 / t.beta];
+        (
+            FitProblem::new(lithosphere, &ages, &[(t.rift_onset_ma, t.rift_end_ma)]),
+            start,
+        )
+    });
+
+    let mut rng = StdRng::seed_from_u64(settings.seed);
+    let mut y = vec![0.0; observations.len()];
+    let (mut betas, mut deltas, mut mantle) = (Vec::new(), Vec::new(), Vec::new());
+    for _ in 0..settings.draws {
+        for (v, o) in y.iter_mut().zip(observations) {
+            let b = o.tectonic_subsidence;
+            *v = b.min + (b.max - b.min) * rng.random::<f64>();
+        }
+        let u = uniform_problem.refit_near(&y, ModelKind::Uniform, &uniform_start);
+        betas.push(u.iter().map(|u| 1.0 / (1.0 - u)).product());
+        if let Some((problem, start)) = two_layer_problem.as_mut() {
+            let u = problem.refit_near(&y, ModelKind::TwoLayer, start.as_slice());
+            deltas.push(1.0 / (1.0 - u[0]));
+            mantle.push(1.0 / (1.0 - u[1]));
+        }
+    }
+
+    let spread = |lo: f64, hi: f64, draws: &mut Vec<f64>| {
+        draws.sort_by(f64::total_cmp);
+        FactorSpread {
+            curve_min: lo.min(hi),
+            curve_max: lo.max(hi),
+            p05: percentile(draws, 0.05),
+            p95: percentile(draws, 0.95),
+        }
+    };
+    let beta = spread(b_lo, b_hi, &mut betas);
+    let (two_layer_delta, two_layer_beta) = match two_layer {
+        Some(t) => {
+            let lo = fit_two_layer(
+                lithosphere,
+                observations,
+                SubsidenceCurve::Min,
+                t.rift_onset_ma,
+                t.rift_end_ma,
+            )?;
+            let hi = fit_two_layer(
+                lithosphere,
+                observations,
+                SubsidenceCurve::Max,
+                t.rift_onset_ma,
+                t.rift_end_ma,
+            )?;
+            (
+                Some(spread(lo.delta, hi.delta, &mut deltas)),
+                Some(spread(lo.beta, hi.beta, &mut mantle)),
+            )
+        }
+        None => (None, None),
+    };
+    Ok(StretchingUncertainty {
+        beta,
+        two_layer_delta,
+        two_layer_beta,
+        settings,
+    })
+}
+
+/// The `p` quantile of sorted values, linearly interpolated between order statistics.
+fn percentile(sorted: &[f64], p: f64) -> f64 {
+    let position = p * (sorted.len() - 1) as f64;
+    let (below, above) = (position.floor() as usize, position.ceil() as usize);
+    sorted[below] + (sorted[above] - sorted[below]) * (position - below as f64)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::science::Bounds;
+    use crate::science::fit::tests::{classifier_curve, mckenzie};
+    use crate::science::fit::{RiftEvent, fit_uniform};
+
+    /// The SCIENCE.md 8.2 classifier curve (beta 2) with a PWD range of +-(5 m + `share`
+    /// of the subsidence): deeper water is less certain, so the range widens as the basin
+    /// deepens (Y inherits the PWD bounds one-for-one, SCIENCE.md 9.1). A range of one
+    /// width everywhere would only move Y0.
+    fn ranged(share: f64) -> Vec<SubsidenceObservation> {
+        classifier_curve()
+            .into_iter()
+            .map(|o| {
+                let y = o.tectonic_subsidence.best;
+                let half = if share > 0.0 { 5.0 + share * y } else { 0.0 };
+                SubsidenceObservation {
+                    tectonic_subsidence: Bounds {
+                        min: y - half,
+                        best: y,
+                        max: y + half,
+                    },
+                    ..o
+                }
+            })
+            .collect()
+    }
+
+    #[test]
+    fn the_true_beta_lies_inside_both_ranges_and_the_draws_are_narrower() {
+        let l = mckenzie();
+        let obs = ranged(0.05);
+        let fit = fit_uniform(&l, &obs, SubsidenceCurve::Best, 150.0, 130.0).unwrap();
+        let two = fit_two_layer(&l, &obs, SubsidenceCurve::Best, 150.0, 130.0).unwrap();
+        let u = stretching_uncertainty(&l, &obs, &fit, Some(&two), MonteCarloSettings::default())
+            .unwrap();
+        // The curve was built with beta = 2 (SCIENCE.md 8.2).
+        let b = u.beta;
+        assert!(b.curve_min < 2.0 && 2.0 < b.curve_max, "{b:?}");
+        assert!(b.p05 < 2.0 && 2.0 < b.p95, "{b:?}");
+        // Shifting every point by the full range moves beta more than independent draws do
+        // (independent errors partly cancel in a least-squares fit).
+        assert!(b.curve_min < b.p05 && b.p95 < b.curve_max, "{b:?}");
+        let (d, m) = (u.two_layer_delta.unwrap(), u.two_layer_beta.unwrap());
+        assert!(d.min() < 2.0 && 2.0 < d.max(), "{d:?}");
+        assert!(m.min() < 2.0 && 2.0 < m.max(), "{m:?}");
+    }
+
+    #[test]
+    fn the_same_seed_gives_the_same_range_and_a_wider_pwd_range_a_wider_one() {
+        let l = mckenzie();
+        let narrow = ranged(0.02);
+        let fit = fit_uniform(&l, &narrow, SubsidenceCurve::Best, 150.0, 130.0).unwrap();
+        let settings = MonteCarloSettings { draws: 50, seed: 7 };
+        let a = stretching_uncertainty(&l, &narrow, &fit, None, settings).unwrap();
+        let b = stretching_uncertainty(&l, &narrow, &fit, None, settings).unwrap();
+        assert_eq!(a, b);
+        let wide = stretching_uncertainty(&l, &ranged(0.08), &fit, None, settings).unwrap();
+        assert!(wide.beta.max() - wide.beta.min() > a.beta.max() - a.beta.min());
+    }
+
+    #[test]
+    fn exact_points_give_a_point_range_and_no_rift_is_refused() {
+        let l = mckenzie();
+        let obs = ranged(0.0);
+        let fit = fit_uniform(&l, &obs, SubsidenceCurve::Best, 150.0, 130.0).unwrap();
+        let u = stretching_uncertainty(
+            &l,
+            &obs,
+            &fit,
+            None,
+            MonteCarloSettings { draws: 10, seed: 3 },
+        )
+        .unwrap();
+        assert!(u.beta.max() - u.beta.min() < 1e-5, "{:?}", u.beta);
+        let none = UniformFit {
+            events: Vec::<RiftEvent>::new(),
+            ..fit
+        };
+        assert!(
+            stretching_uncertainty(&l, &obs, &none, None, MonteCarloSettings::default()).is_err()
+        );
+    }
+
+    #[test]
+    fn percentiles_interpolate_between_order_statistics() {
+        let v: Vec<f64> = (0..=100).map(f64::from).collect();
+        assert_eq!(percentile(&v, 0.05), 5.0);
+        assert_eq!(percentile(&[1.0, 2.0], 0.5), 1.5);
+    }
+}
