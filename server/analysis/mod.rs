@@ -2,6 +2,7 @@
 //! study's inputs once, run every well (in parallel: wells are independent), and
 //! shape the results as the JSON contract of PRODUCT.md.
 
+pub mod cache;
 pub mod contract;
 
 use crate::science::backstrip::{self, WellHistory};

@@ -1,14 +1,19 @@
 //! The studies list and the study overview.
 
+use super::exports::{self, ExportMeta};
 use super::pages::{StudiesPage, StudyPage};
 use super::{ApiResult, AppError, AppState, PageResult};
+use crate::analysis::{self, StudyInputs};
+use crate::charts::{self, ChartSize, MapWell, RiftTimingData, RiftTimingWell, WellMapData};
+use crate::services::results::{self, WellResult};
 use crate::store;
+use std::collections::HashMap;
 use crate::store::studies::{StudyRow, StudySummary};
 use crate::store::uploads::UploadRow;
 use crate::store::wells::WellSummary;
 use askama::Template;
 use axum::extract::{Path, State};
-use axum::response::{Html, Redirect};
+use axum::response::{Html, Redirect, Response};
 use axum::routing::get;
 use axum::{Form, Json, Router};
 use serde::{Deserialize, Serialize};
@@ -19,6 +24,7 @@ pub fn routes() -> Router<AppState> {
         .route("/api/studies", get(studies_json).post(create_study_json))
         .route("/studies/{id}", get(study_page))
         .route("/api/studies/{id}", get(study_json))
+        .route("/studies/{id}/download/{file}", get(study_download))
 }
 
 /// The study header shown on every page of a study.
@@ -108,21 +114,183 @@ async fn create_study_json(
     Ok(Json(serde_json::json!({ "id": id })))
 }
 
+/// One row of the overview's wells table: the column's extent and the fit.
+#[derive(Debug, Clone, Serialize)]
+pub struct OverviewRow {
+    pub id: i64,
+    pub name: String,
+    pub x: Option<f64>,
+    pub y: Option<f64>,
+    pub surfaces: i64,
+    pub base_depth_m: Option<f64>,
+    pub oldest_age_ma: Option<f64>,
+    pub rift_onset_ma: Option<f64>,
+    pub rift_end_ma: Option<f64>,
+    pub beta: Option<f64>,
+    pub beta_min: Option<f64>,
+    pub beta_max: Option<f64>,
+    pub delta: Option<f64>,
+    pub rms_misfit_m: Option<f64>,
+    /// "proposed" or "team pick" when there is a fit.
+    pub origin: Option<String>,
+    /// Why there is no fit, or why the well could not be analysed.
+    pub note: Option<String>,
+}
+
+/// The overview's charts as inline SVG (left out of the JSON twin).
+#[derive(Debug, Default)]
+pub struct OverviewCharts {
+    pub map: String,
+    pub rift_timing: String,
+}
+
 #[derive(Debug, Serialize)]
 pub struct StudyView {
     pub study: StudyInfo,
-    pub wells: Vec<WellSummary>,
+    pub wells: Vec<OverviewRow>,
     pub uploads: Vec<UploadRow>,
     pub sea_level_points: usize,
+    #[serde(skip)]
+    pub charts: OverviewCharts,
+}
+
+fn overview_row(summary: &WellSummary, r: &WellResult) -> OverviewRow {
+    let out = r.outcome.as_ref().ok().map(|a| analysis::well_out(a));
+    let st = out.as_ref().and_then(|o| o.stretching.as_ref());
+    OverviewRow {
+        id: summary.id,
+        name: summary.name.clone(),
+        x: summary.x,
+        y: summary.y,
+        surfaces: summary.surfaces,
+        base_depth_m: summary.base_depth_m,
+        oldest_age_ma: summary.oldest_age_ma,
+        rift_onset_ma: st.map(|s| s.rift_onset_ma),
+        rift_end_ma: st.map(|s| s.rift_end_ma),
+        beta: st.map(|s| s.beta),
+        beta_min: st.map(|s| s.beta_min),
+        beta_max: st.map(|s| s.beta_max),
+        delta: st.and_then(|s| s.two_layer.as_ref()).map(|t| t.delta),
+        rms_misfit_m: st.map(|s| s.rms_misfit_m),
+        origin: st.map(|s| s.origin.to_string()),
+        note: match &r.outcome {
+            Err(e) => Some(format!("not analysed: {e}")),
+            Ok(_) => out.and_then(|o| o.fit_note),
+        },
+    }
+}
+
+/// The analysis of every well, in the order of the well summaries (by name).
+async fn overview_rows(state: &AppState, id: i64, summaries: &[WellSummary]) -> ApiResult<(StudyInputs, Vec<OverviewRow>)> {
+    let timings = HashMap::new();
+    let (inputs, results) = results::study_results(&state.db, &state.cache, id, &timings).await?;
+    let by_id: HashMap<i64, &WellResult> = results.iter().map(|r| (r.well.id, r)).collect();
+    let rows = summaries.iter().filter_map(|s| by_id.get(&s.id).map(|r| overview_row(s, r))).collect();
+    Ok((inputs, rows))
+}
+
+fn overview_charts(study: &str, rows: &[OverviewRow]) -> OverviewCharts {
+    let size = ChartSize::default();
+    OverviewCharts {
+        map: charts::well_map_chart(&map_data(study, rows), size),
+        rift_timing: charts::rift_timing_chart(&rift_timing_data(study, rows), ChartSize { width: 900, height: rift_chart_height(rows.len()) }),
+    }
+}
+
+/// Taller for many wells, so every bar stays visible.
+fn rift_chart_height(wells: usize) -> u32 {
+    (160 + 14 * wells as u32).clamp(320, 1400)
+}
+
+fn map_data(study: &str, rows: &[OverviewRow]) -> WellMapData {
+    WellMapData {
+        title: format!("Wells of {study} by stretching factor β"),
+        wells: rows
+            .iter()
+            .map(|r| MapWell { name: r.name.clone(), x_m: r.x.unwrap_or(f64::NAN), y_m: r.y.unwrap_or(f64::NAN), beta: r.beta })
+            .collect(),
+    }
+}
+
+fn rift_timing_data(study: &str, rows: &[OverviewRow]) -> RiftTimingData {
+    RiftTimingData {
+        title: format!("Rift timing across the wells of {study}"),
+        wells: rows
+            .iter()
+            .filter_map(|r| {
+                Some(RiftTimingWell { name: r.name.clone(), rift_onset_ma: r.rift_onset_ma?, rift_end_ma: r.rift_end_ma? })
+            })
+            .collect(),
+        wells_without_fit: rows.iter().filter(|r| r.beta.is_none()).map(|r| r.name.clone()).collect(),
+    }
 }
 
 async fn study_view(state: &AppState, id: i64) -> ApiResult<StudyView> {
     let study = load_study(state, id).await?;
+    let summaries = store::wells::summaries(&state.db, id).await?;
+    let (_, wells) = overview_rows(state, id, &summaries).await?;
+    let charts = overview_charts(&study.name, &wells);
     Ok(StudyView {
         study: StudyInfo::from(&study),
-        wells: store::wells::summaries(&state.db, id).await?,
+        wells,
         uploads: store::uploads::list(&state.db, id).await?,
         sea_level_points: store::sea_level::points(&state.db, id).await?.len(),
+        charts,
+    })
+}
+
+/// Downloads of the overview: the wells table (CSV), the map and rift-timing charts
+/// (SVG), and the full analysis of every well (JSON).
+async fn study_download(State(state): State<AppState>, Path((id, file)): Path<(i64, String)>) -> ApiResult<Response> {
+    let study = load_study(&state, id).await?;
+    let summaries = store::wells::summaries(&state.db, id).await?;
+    let (inputs, rows) = overview_rows(&state, id, &summaries).await?;
+    let meta = ExportMeta::new(&study.name, &inputs);
+    let base = study.name.clone();
+    Ok(match file.as_str() {
+        "wells.csv" => {
+            let num = |x: Option<f64>, d: usize| x.map(|v| format!("{v:.d$}")).unwrap_or_default();
+            let table: Vec<Vec<String>> = rows
+                .iter()
+                .map(|r| {
+                    vec![
+                        r.name.clone(),
+                        num(r.x, 1),
+                        num(r.y, 1),
+                        r.surfaces.to_string(),
+                        num(r.rift_onset_ma, 3),
+                        num(r.rift_end_ma, 3),
+                        num(r.beta, 4),
+                        num(r.beta_min, 4),
+                        num(r.beta_max, 4),
+                        num(r.delta, 4),
+                        num(r.rms_misfit_m, 2),
+                        r.origin.clone().unwrap_or_default(),
+                        r.note.clone().unwrap_or_default(),
+                    ]
+                })
+                .collect();
+            let header = ["well", "x_m", "y_m", "surfaces", "rift_onset_ma", "rift_end_ma", "beta", "beta_min", "beta_max", "delta", "rms_misfit_m", "timing", "note"];
+            exports::download("text/csv; charset=utf-8", &format!("{base}-wells.csv"), exports::csv_text(&meta, &format!("Wells of study {base}"), &header, &table))
+        }
+        "map.svg" => exports::download("image/svg+xml", &format!("{base}-map.svg"), meta.stamp_svg(&charts::well_map_chart(&map_data(&base, &rows), ChartSize::default()))),
+        "rift-timing.svg" => {
+            let size = ChartSize { width: 900, height: rift_chart_height(rows.len()) };
+            exports::download("image/svg+xml", &format!("{base}-rift-timing.svg"), meta.stamp_svg(&charts::rift_timing_chart(&rift_timing_data(&base, &rows), size)))
+        }
+        "analysis.json" => {
+            let (inputs, results) = results::study_results(&state.db, &state.cache, id, &HashMap::new()).await?;
+            let wells: Vec<_> = results
+                .iter()
+                .map(|r| match &r.outcome {
+                    Ok(a) => analysis::well_out(a),
+                    Err(e) => analysis::failed_well_out(&r.well.name, &crate::science::ScienceError::InvalidColumn { well: r.well.name.clone(), reason: e.clone() }),
+                })
+                .collect();
+            let body = serde_json::json!({ "export": meta, "parameters": analysis::parameters_out(&inputs), "wells": wells });
+            exports::download("application/json", &format!("{base}-analysis.json"), serde_json::to_string_pretty(&body).unwrap_or_default())
+        }
+        other => return Err(AppError::NotFound(format!("download '{other}'"))),
     })
 }
 

@@ -4,13 +4,16 @@
 use super::pages::WellPage;
 use super::studies::{StudyInfo, load_study};
 use super::{ApiResult, AppError, AppState, PageResult};
-use crate::analysis::{self, WellAnalysis, contract::WellOut};
-use crate::services::{self, ServiceError};
+use super::exports::{self, ExportMeta};
+use super::well_charts;
+use crate::analysis::{self, StudyInputs, WellAnalysis, contract::WellOut};
+use crate::charts::{self, ChartSize};
+use crate::services::results::{self, WellResult};
 use crate::store;
 use crate::store::wells::{SurfaceRow, WellRow};
 use askama::Template;
 use axum::extract::{Path, State};
-use axum::response::Html;
+use axum::response::{Html, Response};
 use axum::routing::get;
 use axum::{Json, Router};
 use serde::Serialize;
@@ -19,6 +22,7 @@ pub fn routes() -> Router<AppState> {
     Router::new()
         .route("/studies/{id}/wells/{well_id}", get(well_page))
         .route("/api/studies/{id}/wells/{well_id}", get(well_json))
+        .route("/studies/{id}/wells/{well_id}/download/{file}", get(well_download))
 }
 
 /// One row of the column table: a surface and the unit below it.
@@ -87,6 +91,8 @@ pub struct WellView {
     pub restored: Vec<RestoredStepView>,
     /// Why the well could not be analysed, in words a user can act on.
     pub analysis_error: Option<String>,
+    #[serde(skip)]
+    pub charts: WellCharts,
 }
 
 fn restored_steps(a: &WellAnalysis) -> Vec<RestoredStepView> {
@@ -115,39 +121,50 @@ fn restored_steps(a: &WellAnalysis) -> Vec<RestoredStepView> {
         .collect()
 }
 
-/// Analyse a stored well off the async runtime.
-async fn analyse(state: &AppState, study_id: i64, well: &WellRow, surfaces: &[SurfaceRow]) -> Result<Result<WellAnalysis, String>, AppError> {
-    let inputs = match services::study_inputs(&state.db, study_id).await {
-        Ok(i) => i,
-        Err(ServiceError::Invalid(msg)) => return Ok(Err(msg)),
-        Err(e) => return Err(e.into()),
-    };
-    let column = match services::well_column(&well.name, surfaces) {
-        Ok(c) => c,
-        Err(e) => return Ok(Err(e.to_string())),
-    };
-    tokio::task::spawn_blocking(move || analysis::analyse_well(&column, &inputs, None).map_err(|e| e.to_string()))
-        .await
-        .map_err(|e| AppError::Internal(anyhow::anyhow!("analysis task failed: {e}")))
+/// The charts of the well page, as inline SVG (left out of the JSON twin).
+#[derive(Debug, Default)]
+pub struct WellCharts {
+    pub subsidence: String,
+    pub burial: String,
+    pub heat_flow: String,
 }
 
-async fn well_view(state: &AppState, study_id: i64, well_id: i64) -> ApiResult<WellView> {
+/// A well, its stored column and its (cached) analysis.
+async fn well_result(state: &AppState, study_id: i64, well_id: i64) -> ApiResult<(StudyInfo, StudyInputs, WellResult)> {
     let study = load_study(state, study_id).await?;
     let well = store::wells::get(&state.db, study_id, well_id)
         .await?
         .ok_or_else(|| AppError::NotFound(format!("well {well_id} in study {study_id}")))?;
-    let surfaces = store::wells::surfaces(&state.db, well_id).await?;
-    let (analysis, restored, analysis_error) = match analyse(state, study_id, &well, &surfaces).await? {
-        Ok(a) => (Some(analysis::well_out(&a)), restored_steps(&a), None),
-        Err(e) => (None, Vec::new(), Some(e)),
+    let timing = None;
+    let (inputs, result) = results::well_result(&state.db, &state.cache, study_id, well, timing).await?;
+    Ok((StudyInfo::from(&study), inputs, result))
+}
+
+async fn well_view(state: &AppState, study_id: i64, well_id: i64) -> ApiResult<WellView> {
+    let (study, _inputs, r) = well_result(state, study_id, well_id).await?;
+    let (analysis, restored, analysis_error) = match &r.outcome {
+        Ok(a) => (Some(analysis::well_out(a)), restored_steps(a), None),
+        Err(e) => (None, Vec::new(), Some(e.clone())),
+    };
+    let charts = match &r.outcome {
+        Ok(a) => {
+            let size = ChartSize::default();
+            WellCharts {
+                subsidence: charts::subsidence_chart(&well_charts::subsidence_data(&r.well.name, a), size),
+                burial: charts::burial_chart(&well_charts::burial_data(&r.well.name, a), size),
+                heat_flow: charts::heat_flow_chart(&well_charts::heat_flow_data(&r.well.name, a), size),
+            }
+        }
+        Err(_) => WellCharts::default(),
     };
     Ok(WellView {
-        study: StudyInfo::from(&study),
-        well,
-        column: column_rows(&surfaces),
+        study,
+        column: column_rows(&r.surfaces),
+        well: r.well,
         analysis,
         restored,
         analysis_error,
+        charts,
     })
 }
 
@@ -164,4 +181,68 @@ async fn well_json(
     Path((id, well_id)): Path<(i64, i64)>,
 ) -> ApiResult<Json<WellView>> {
     Ok(Json(well_view(&state, id, well_id).await?))
+}
+
+/// Downloads of the well page: charts as SVG, tables as CSV, the analysis as JSON.
+async fn well_download(
+    State(state): State<AppState>,
+    Path((id, well_id, file)): Path<(i64, i64, String)>,
+) -> ApiResult<Response> {
+    let (study, inputs, r) = well_result(&state, id, well_id).await?;
+    let meta = ExportMeta::new(&study.name, &inputs);
+    let name = &r.well.name;
+    let a = r
+        .outcome
+        .as_ref()
+        .map_err(|e| AppError::Rejected(format!("Well {name} could not be analysed: {e}")))?;
+    let size = ChartSize::default();
+    let svg = |body: String| exports::download("image/svg+xml", &format!("{name}-{file}"), meta.stamp_svg(&body));
+    let csv = |what: &str, header: &[&str], rows: Vec<Vec<String>>| {
+        exports::download("text/csv; charset=utf-8", &format!("{name}-{file}"), exports::csv_text(&meta, what, header, &rows))
+    };
+    Ok(match file.as_str() {
+        "subsidence.svg" => svg(charts::subsidence_chart(&well_charts::subsidence_data(name, a), size)),
+        "burial.svg" => svg(charts::burial_chart(&well_charts::burial_data(name, a), size)),
+        "heat-flow.svg" => svg(charts::heat_flow_chart(&well_charts::heat_flow_data(name, a), size)),
+        "history.csv" => {
+            let out = analysis::well_out(a);
+            csv(&format!("Backstripping history of well {name}"), &analysis::CSV_HEADER, analysis::csv_rows(&out))
+        }
+        "heat-flow.csv" => {
+            let rows = a
+                .interpretation
+                .as_ref()
+                .map(|i| i.heat_flow_grid.iter().map(|p| vec![name.clone(), format!("{:.3}", p.age_ma), format!("{:.3}", p.value)]).collect())
+                .unwrap_or_default();
+            csv(&format!("Surface heat flow of the fitted model, well {name}"), &["well", "age_ma", "heat_flow_mw_m2"], rows)
+        }
+        "column.csv" => {
+            let rows = column_rows(&r.surfaces)
+                .into_iter()
+                .map(|c| {
+                    vec![
+                        name.clone(),
+                        c.horizon,
+                        c.depth_m.to_string(),
+                        c.age_ma.to_string(),
+                        c.unit_lithology.unwrap_or_default(),
+                        c.water_depth_min_m.to_string(),
+                        c.water_depth_max_m.to_string(),
+                        c.eroded_m.map(|x| x.to_string()).unwrap_or_default(),
+                        c.eroded_at_ma.map(|x| x.to_string()).unwrap_or_default(),
+                    ]
+                })
+                .collect();
+            csv(
+                &format!("Column of well {name}"),
+                &["well", "horizon", "depth_m", "age_ma", "lithology", "water_depth_min_m", "water_depth_max_m", "eroded_m", "eroded_at_ma"],
+                rows,
+            )
+        }
+        "analysis.json" => {
+            let body = serde_json::json!({ "export": meta, "wells": [analysis::well_out(a)] });
+            exports::download("application/json", &format!("{name}-analysis.json"), serde_json::to_string_pretty(&body).unwrap_or_default())
+        }
+        other => return Err(AppError::NotFound(format!("download '{other}'"))),
+    })
 }

@@ -1,0 +1,102 @@
+//! Analysis results for pages and exports: load the inputs, look each well up in the
+//! content-keyed cache, and compute only the misses, off the async runtime and on
+//! all cores.
+
+use super::ServiceError;
+use crate::analysis::cache::{AnalysisCache, content_key};
+use crate::analysis::{self, RiftTiming, StudyInputs, WellAnalysis};
+use crate::science::WellColumn;
+use crate::store;
+use crate::store::wells::{SurfaceRow, WellRow};
+use rayon::prelude::*;
+use sqlx::SqlitePool;
+use std::collections::HashMap;
+use std::sync::Arc;
+
+/// A well's analysis, or why it could not be analysed (in words for the user).
+pub type WellOutcome = Result<Arc<WellAnalysis>, String>;
+
+/// One well of a study with its result.
+#[derive(Debug, Clone)]
+pub struct WellResult {
+    pub well: WellRow,
+    pub surfaces: Vec<SurfaceRow>,
+    pub outcome: WellOutcome,
+}
+
+/// Analyse (or fetch from the cache) every well of a study, in name order.
+/// `timings` holds the team's rift timing by well id.
+pub async fn study_results(
+    db: &SqlitePool,
+    cache: &Arc<AnalysisCache>,
+    study_id: i64,
+    timings: &HashMap<i64, RiftTiming>,
+) -> Result<(StudyInputs, Vec<WellResult>), ServiceError> {
+    let inputs = super::study_inputs(db, study_id).await?;
+    let wells = store::wells::list(db, study_id).await?;
+    let mut by_well: HashMap<i64, Vec<SurfaceRow>> = HashMap::new();
+    for row in store::wells::all_surfaces(db, study_id).await? {
+        by_well.entry(row.well_id).or_default().push(row);
+    }
+    let jobs: Vec<(WellRow, Vec<SurfaceRow>, Option<RiftTiming>)> = wells
+        .into_iter()
+        .map(|w| {
+            let surfaces = by_well.remove(&w.id).unwrap_or_default();
+            let timing = timings.get(&w.id).cloned();
+            (w, surfaces, timing)
+        })
+        .collect();
+    let results = run(cache, &inputs, jobs).await?;
+    Ok((inputs, results))
+}
+
+/// Analyse (or fetch) one well.
+pub async fn well_result(
+    db: &SqlitePool,
+    cache: &Arc<AnalysisCache>,
+    study_id: i64,
+    well: WellRow,
+    timing: Option<RiftTiming>,
+) -> Result<(StudyInputs, WellResult), ServiceError> {
+    let inputs = super::study_inputs(db, study_id).await?;
+    let surfaces = store::wells::surfaces(db, well.id).await?;
+    let mut results = run(cache, &inputs, vec![(well, surfaces, timing)]).await?;
+    let result = results.pop().ok_or_else(|| ServiceError::Invalid("no result".into()))?;
+    Ok((inputs, result))
+}
+
+async fn run(
+    cache: &Arc<AnalysisCache>,
+    inputs: &StudyInputs,
+    jobs: Vec<(WellRow, Vec<SurfaceRow>, Option<RiftTiming>)>,
+) -> Result<Vec<WellResult>, ServiceError> {
+    let cache = Arc::clone(cache);
+    let inputs = inputs.clone();
+    tokio::task::spawn_blocking(move || {
+        jobs.into_par_iter()
+            .map(|(well, surfaces, timing)| {
+                let outcome = analyse_cached(&cache, &inputs, &well.name, &surfaces, timing.as_deref());
+                WellResult { well, surfaces, outcome }
+            })
+            .collect()
+    })
+    .await
+    .map_err(|e| ServiceError::Invalid(format!("the analysis stopped unexpectedly: {e}")))
+}
+
+fn analyse_cached(
+    cache: &AnalysisCache,
+    inputs: &StudyInputs,
+    name: &str,
+    surfaces: &[SurfaceRow],
+    timing: Option<&[(f64, f64)]>,
+) -> WellOutcome {
+    let column: WellColumn = super::well_column(name, surfaces).map_err(|e| e.to_string())?;
+    let key = content_key(&column, inputs, timing);
+    if let Some(hit) = cache.get(key) {
+        return Ok(hit);
+    }
+    let analysis = Arc::new(analysis::analyse_well(&column, inputs, timing).map_err(|e| e.to_string())?);
+    cache.insert(key, Arc::clone(&analysis));
+    Ok(analysis)
+}

@@ -1,0 +1,97 @@
+//! Mapping a well's analysis into the chart inputs of `crate::charts`.
+
+use crate::analysis::WellAnalysis;
+use crate::charts::{
+    BurialChartData, BurialHorizon, BurialUnit, BurialUnitStep, HeatFlowChartData, PhaseBand, SubsidenceChartData,
+    TectonicPoint, WaterDepthPoint,
+};
+
+fn phase_bands(a: &WellAnalysis) -> Vec<PhaseBand> {
+    a.interpretation
+        .as_ref()
+        .map(|i| {
+            i.proposal
+                .intervals
+                .iter()
+                .map(|p| PhaseBand { name: p.phase.label().to_string(), from_ma: p.from_ma, to_ma: p.to_ma })
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+/// Total and tectonic subsidence through time, with the fitted model and the phases.
+pub fn subsidence_data(well_name: &str, a: &WellAnalysis) -> SubsidenceChartData {
+    let steps = &a.history.steps;
+    SubsidenceChartData {
+        title: format!("Subsidence, well {well_name}"),
+        tectonic: steps
+            .iter()
+            .map(|s| TectonicPoint {
+                age_ma: s.age_ma,
+                min_m: s.tectonic_subsidence.min,
+                best_m: s.tectonic_subsidence.best,
+                max_m: s.tectonic_subsidence.max,
+            })
+            .collect(),
+        total: steps.iter().map(|s| (s.age_ma, s.total_subsidence_m)).collect(),
+        model_curve: a.interpretation.as_ref().map(|i| i.model_curve.clone()).unwrap_or_default(),
+        phases: phase_bands(a),
+    }
+}
+
+/// Surface heat flow of the fitted model through time.
+pub fn heat_flow_data(well_name: &str, a: &WellAnalysis) -> HeatFlowChartData {
+    let i = a.interpretation.as_ref().ok();
+    HeatFlowChartData {
+        title: format!("Surface heat flow, well {well_name}"),
+        heat_flow: i.map(|i| i.heat_flow_grid.iter().map(|p| (p.age_ma, p.value)).collect()).unwrap_or_default(),
+        equilibrium_mw_m2: i.map(|i| i.equilibrium_heat_flow_mw_m2),
+        phases: phase_bands(a),
+    }
+}
+
+/// Every horizon's burial depth through time, units by lithology, and the water column.
+pub fn burial_data(well_name: &str, a: &WellAnalysis) -> BurialChartData {
+    let h = &a.history;
+    let horizons = (0..h.horizons.len())
+        .map(|i| BurialHorizon {
+            name: h.horizon(i).to_string(),
+            depths: h.steps.iter().filter_map(|s| s.horizon_depth_m(i).map(|d| (s.age_ma, d))).collect(),
+        })
+        .filter(|b| !b.depths.is_empty())
+        .collect();
+    // One band per unit (and per eroded section), in column order.
+    let mut units: Vec<(usize, bool, BurialUnit)> = Vec::new();
+    for s in &h.steps {
+        for u in &s.units {
+            let step = BurialUnitStep { age_ma: s.age_ma, top_m: u.top_m, base_m: u.base_m };
+            match units.iter_mut().find(|(i, e, _)| *i == u.unit && *e == u.eroded_section) {
+                Some((_, _, band)) => band.steps.push(step),
+                None => units.push((
+                    u.unit,
+                    u.eroded_section,
+                    BurialUnit {
+                        base_horizon: h.base_horizon(u).to_string(),
+                        lithology: h.lithology(u).to_string(),
+                        steps: vec![step],
+                    },
+                )),
+            }
+        }
+    }
+    BurialChartData {
+        title: format!("Burial history, well {well_name}"),
+        horizons,
+        units: units.into_iter().map(|(_, _, b)| b).collect(),
+        water_depth: h
+            .steps
+            .iter()
+            .map(|s| WaterDepthPoint {
+                age_ma: s.age_ma,
+                min_m: s.water_depth.min,
+                best_m: s.water_depth.best,
+                max_m: s.water_depth.max,
+            })
+            .collect(),
+    }
+}
