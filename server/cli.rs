@@ -1,12 +1,19 @@
-//! The command line: `sagline [serve]` and `sagline analyze`.
+//! The command line: `sagline [serve]`, `sagline analyze` and `sagline user add`.
 
+use crate::auth::Role;
+use crate::services::accounts;
 use clap::{Args, Parser, Subcommand};
+use std::io::BufRead;
 use std::net::SocketAddr;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
 #[derive(Debug, Parser)]
-#[command(name = "sagline", version, about = "Subsidence analysis of sedimentary basins, well by well")]
+#[command(
+    name = "sagline",
+    version,
+    about = "Subsidence analysis of sedimentary basins, well by well"
+)]
 pub struct Cli {
     #[command(subcommand)]
     pub command: Option<Command>,
@@ -18,6 +25,40 @@ pub enum Command {
     Serve(ServeArgs),
     /// Analyse a tops file and print the results as JSON or CSV.
     Analyze(crate::batch::AnalyzeArgs),
+    /// Manage the accounts of a database.
+    User(UserArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct UserArgs {
+    #[command(subcommand)]
+    pub action: UserAction,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum UserAction {
+    /// Add an account and print its generated password (or read one with --password-stdin).
+    Add(UserAddArgs),
+}
+
+#[derive(Debug, Clone, Args)]
+pub struct UserAddArgs {
+    /// The user name: letters, digits and . _ - @ (no spaces).
+    pub name: String,
+    /// What the account may do: viewer (reads), interpreter (also uploads, picks,
+    /// comments) or admin (also users, studies, parameters, catalogue, deletes).
+    #[arg(long, value_parser = parse_role)]
+    pub role: Role,
+    /// The study database (SQLite); it must exist (start the server once to create it).
+    #[arg(long, default_value = "sagline.db")]
+    pub db: PathBuf,
+    /// Read the password from the first line of standard input instead of generating one.
+    #[arg(long)]
+    pub password_stdin: bool,
+}
+
+fn parse_role(text: &str) -> Result<Role, String> {
+    text.parse()
 }
 
 #[derive(Debug, Clone, Args)]
@@ -49,18 +90,26 @@ pub fn main() -> ExitCode {
     match cli.command {
         Some(Command::Analyze(args)) => crate::batch::run(&args),
         Some(Command::Serve(args)) => serve_blocking(args),
+        Some(Command::User(UserArgs {
+            action: UserAction::Add(args),
+        })) => user_add(&args),
         None => serve_blocking(ServeArgs::default()),
     }
 }
 
+/// The async runtime, or the failure to report.
+fn runtime() -> Result<tokio::runtime::Runtime, ExitCode> {
+    tokio::runtime::Runtime::new().map_err(|e| {
+        eprintln!("error: cannot start the async runtime: {e}");
+        ExitCode::FAILURE
+    })
+}
+
 fn serve_blocking(args: ServeArgs) -> ExitCode {
     init_logging();
-    let runtime = match tokio::runtime::Runtime::new() {
+    let runtime = match runtime() {
         Ok(rt) => rt,
-        Err(e) => {
-            eprintln!("error: cannot start the async runtime: {e}");
-            return ExitCode::FAILURE;
-        }
+        Err(code) => return code,
     };
     match runtime.block_on(crate::server::run(args)) {
         Ok(()) => ExitCode::SUCCESS,
@@ -71,8 +120,65 @@ fn serve_blocking(args: ServeArgs) -> ExitCode {
     }
 }
 
+/// `sagline user add`: the account is recorded in the activity log as made from the command line.
+fn user_add(args: &UserAddArgs) -> ExitCode {
+    if !args.db.exists() {
+        eprintln!(
+            "error: there is no database at {}; start the server once to create it, or give --db PATH",
+            args.db.display()
+        );
+        return ExitCode::FAILURE;
+    }
+    let password = if args.password_stdin {
+        let mut line = String::new();
+        if let Err(e) = std::io::stdin().lock().read_line(&mut line) {
+            eprintln!("error: cannot read the password from standard input: {e}");
+            return ExitCode::FAILURE;
+        }
+        Some(line.trim_end_matches(['\r', '\n']).to_string())
+    } else {
+        None
+    };
+    let added = async {
+        let db = crate::store::open(&args.db).await?;
+        let created = accounts::create_user(
+            &db,
+            &args.name,
+            args.role,
+            password.as_deref(),
+            accounts::COMMAND_LINE_ACTOR,
+        )
+        .await;
+        db.close().await;
+        anyhow::Ok(created?)
+    };
+    let runtime = match runtime() {
+        Ok(rt) => rt,
+        Err(code) => return code,
+    };
+    match runtime.block_on(added) {
+        Ok(created) => {
+            println!(
+                "Added '{}' with the {} role to {}.",
+                created.user.name,
+                created.user.role,
+                args.db.display()
+            );
+            if let Some(p) = created.generated_password {
+                println!("Password, shown only this once:\n\n    {p}\n");
+            }
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!("error: {e:#}");
+            ExitCode::FAILURE
+        }
+    }
+}
+
 fn init_logging() {
     use tracing_subscriber::EnvFilter;
-    let filter = EnvFilter::try_from_default_env().unwrap_or_else(|_| EnvFilter::new("info,sqlx=warn,tower_http=info"));
+    let filter = EnvFilter::try_from_default_env()
+        .unwrap_or_else(|_| EnvFilter::new("info,sqlx=warn,tower_http=info"));
     let _ = tracing_subscriber::fmt().with_env_filter(filter).try_init();
 }

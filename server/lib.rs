@@ -12,6 +12,8 @@ pub mod analysis;
 pub mod batch;
 /// The store: every SQL statement, as functions taking an executor.
 pub mod store;
+/// Accounts and access without I/O: roles, the access rules, password hashing, session tokens.
+pub mod auth;
 /// Operations that change data: one transaction each, with their activity-log row.
 pub mod services;
 /// The demo study, built from the files in `demo-db/`.

@@ -1,29 +1,44 @@
 //! Starting and stopping the web server.
 
 use crate::cli::ServeArgs;
+use crate::services::accounts;
 use crate::{demo, store, web};
 use anyhow::Context;
 use std::net::SocketAddr;
 use tokio::net::TcpListener;
 
 /// Open (or create) the database, seed the demo study into a new one unless
-/// `--empty`, then serve until Ctrl-C.
+/// `--empty`, create the first admin account if there is no account yet (its password
+/// is printed once), then serve until Ctrl-C.
 pub async fn run(args: ServeArgs) -> anyhow::Result<()> {
     let is_new = !args.db.exists();
     let db = store::open(&args.db)
         .await
         .with_context(|| format!("cannot open the database {}", args.db.display()))?;
     if is_new && !args.empty {
-        demo::seed(&db).await.context("cannot build the demo study")?;
+        demo::seed(&db)
+            .await
+            .context("cannot build the demo study")?;
         tracing::info!(db = %args.db.display(), "created a new database holding the demo study");
     } else if is_new {
         tracing::info!(db = %args.db.display(), "created a new, empty database");
     }
+    let first_admin_password = accounts::ensure_first_admin(&db)
+        .await
+        .context("cannot create the first admin account")?;
     let listener = TcpListener::bind(args.bind)
         .await
         .with_context(|| format!("cannot listen on {}", args.bind))?;
     let addr = listener.local_addr()?;
-    println!("Sagline is serving {} at http://{}/", args.db.display(), display_addr(addr));
+    let url = format!("http://{}/", display_addr(addr));
+    println!("Sagline is serving {} at {url}", args.db.display());
+    if let Some(password) = first_admin_password {
+        // Printed, never logged: this console line is the only place the password appears.
+        println!(
+            "First start: an account '{}' with the admin role was created. Its password, shown only this once:\n\n    {password}\n\nSign in at {url}login and add your team's accounts under Users.",
+            accounts::FIRST_ADMIN_NAME
+        );
+    }
     serve(listener, web::AppState::new(db.clone()), shutdown_signal()).await?;
     db.close().await;
     tracing::info!("stopped");
@@ -37,9 +52,13 @@ pub async fn serve(
     state: web::AppState,
     shutdown: impl std::future::Future<Output = ()> + Send + 'static,
 ) -> std::io::Result<()> {
-    axum::serve(listener, web::router(state))
-        .with_graceful_shutdown(shutdown)
-        .await
+    // The client address is what sign-in throttling counts failures by.
+    axum::serve(
+        listener,
+        web::router(state).into_make_service_with_connect_info::<SocketAddr>(),
+    )
+    .with_graceful_shutdown(shutdown)
+    .await
 }
 
 fn display_addr(addr: SocketAddr) -> String {

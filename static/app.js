@@ -24,3 +24,79 @@ document.querySelectorAll("table.sortable").forEach((table) => {
     });
   });
 });
+
+// Live updates: a study page listens to its study's change stream and refreshes the
+// parts that changed in place (the page keeps working without it: reload shows all).
+(() => {
+  const title = document.querySelector("[data-study]");
+  if (!title || !window.EventSource) return;
+  const study = title.dataset.study;
+  const well = title.dataset.well;
+  const feed = document.getElementById("live-feed");
+  const refresh = async (selectors) => {
+    const res = await fetch(window.location.pathname + window.location.search, { credentials: "same-origin" });
+    if (!res.ok) return;
+    const doc = new DOMParser().parseFromString(await res.text(), "text/html");
+    for (const sel of selectors) {
+      const mine = document.querySelector(sel);
+      const theirs = doc.querySelector(sel);
+      if (mine && theirs) mine.replaceWith(theirs);
+    }
+    wireChartClicks();
+  };
+  const source = new EventSource(`/api/studies/${study}/events`);
+  source.addEventListener("change", (msg) => {
+    const e = JSON.parse(msg.data);
+    if (feed) {
+      const line = document.createElement("p");
+      line.className = "live-line";
+      line.textContent = `${new Date().toLocaleTimeString()}: ${e.summary}`;
+      feed.prepend(line);
+    }
+    if (well && String(e.well_id) === well) {
+      refresh(["#review-panel", "#comments", "#interpretation", "#charts"]);
+    } else if (!well) {
+      refresh(["#wells-table", "#overview-charts"]);
+    }
+  });
+  source.addEventListener("missed", () => window.location.reload());
+})();
+
+// Clicking the subsidence chart sets the rift onset (first click) and end (second
+// click) of rift event 1 to the nearest surface age, then tries the timing at once.
+function wireChartClicks() {
+  const chart = document.querySelector("#charts figure.subsidence svg");
+  const form = document.querySelector('.pick-editor[data-event="1"] form.pick-form');
+  if (!chart || !form || chart.dataset.wired) return;
+  chart.dataset.wired = "1";
+  const axis = chart.querySelector('[data-series="age-axis"]');
+  if (!axis) return;
+  const ages = Array.from(document.querySelectorAll("#surface-ages option")).map((o) => parseFloat(o.value));
+  let first = null;
+  chart.style.cursor = "crosshair";
+  chart.addEventListener("click", (ev) => {
+    const box = chart.getBoundingClientRect();
+    const vb = chart.viewBox.baseVal;
+    const px = ((ev.clientX - box.left) / box.width) * (vb && vb.width ? vb.width : box.width);
+    const a = parseFloat(axis.dataset.ageAMa), pa = parseFloat(axis.dataset.pxA);
+    const b = parseFloat(axis.dataset.ageBMa), pb = parseFloat(axis.dataset.pxB);
+    const age = a + ((px - pa) / (pb - pa)) * (b - a);
+    const nearest = ages.reduce((best, x) => (Math.abs(x - age) < Math.abs(best - age) ? x : best), ages[0]);
+    if (first === null) {
+      first = nearest;
+      form.querySelector('[name="rift_onset_ma"]').value = nearest;
+      const hint = document.getElementById("click-hint");
+      if (hint) hint.textContent = `Rift onset set to ${nearest} Ma; now click the rift end.`;
+      return;
+    }
+    const onset = Math.max(first, nearest), end = Math.min(first, nearest);
+    first = null;
+    if (onset === end) return;
+    const url = new URL(window.location.href);
+    url.searchParams.set("trial_onset_ma", onset);
+    url.searchParams.set("trial_end_ma", end);
+    url.hash = "review";
+    window.location.href = url.toString();
+  });
+}
+wireChartClicks();

@@ -128,7 +128,9 @@ async fn the_browser_preview_shows_problems_and_a_mapping_fixes_them() {
         page.body
     );
     assert!(
-        !page.body.contains("method=\"post\""),
+        !page
+            .body
+            .contains(&format!("method=\"post\" action=\"{path}\"")),
         "no store button while problems remain"
     );
     let refused = app.post_form(&path, &[]).await;

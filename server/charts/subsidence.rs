@@ -96,6 +96,7 @@ fn draw(data: &SubsidenceChartData, body: &Area<'_>, tags: &mut Tags) -> DrawRes
         y_ticks: true,
     };
     let mut chart = draw_axes(&plot, tags, &spec)?;
+    mark_age_axis(&chart, &plot, tags)?;
 
     draw_phase_bands(&mut chart, &plot, tags, &phases)?;
 
@@ -195,6 +196,22 @@ pub(crate) fn old_to_young(points: &[(f64, f64)]) -> Vec<(f64, f64)> {
 
 /// Shade each phase as a full-height band (group "phase-band" with its name and
 /// ages), named at the top of the band when the name fits inside it.
+/// Record where the age axis lies in SVG pixels, so a page script can turn a click on
+/// the chart into an age: `data-age-a-ma` sits at `data-px-a`, `data-age-b-ma` at `data-px-b`.
+fn mark_age_axis(chart: &Chart<'_, '_>, plot: &Area<'_>, tags: &mut Tags) -> DrawResult {
+    let x = chart.x_range();
+    let y = chart.y_range();
+    let (px_a, _) = chart.backend_coord(&(x.start, y.end));
+    let (px_b, _) = chart.backend_coord(&(x.end, y.end));
+    let group = Group::new("age-axis")
+        .attr("data-age-a-ma", x.start)
+        .attr("data-px-a", px_a)
+        .attr("data-age-b-ma", x.end)
+        .attr("data-px-b", px_b);
+    tags.open(plot, group)?;
+    tags.close(plot)
+}
+
 pub(crate) fn draw_phase_bands(
     chart: &mut Chart<'_, '_>,
     plot: &Area<'_>,

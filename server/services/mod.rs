@@ -2,7 +2,10 @@
 //! (through `crate::store`) in one transaction and writes its activity-log row in
 //! that same transaction, so a change and its record land together or not at all.
 
+pub mod accounts;
 pub mod import;
+pub mod results;
+pub mod review;
 
 use crate::input::InputProblem;
 
@@ -18,6 +21,9 @@ pub enum ServiceError {
     Problems(Vec<InputProblem>),
     #[error("{0}")]
     Conflict(String),
+    /// A save made against an old version; `current` is the stored state (JSON).
+    #[error("{message}")]
+    Stale { message: String, current: Option<serde_json::Value> },
     #[error(transparent)]
     Database(#[from] sqlx::Error),
 }

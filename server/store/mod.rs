@@ -5,10 +5,14 @@
 //! one transaction (`let mut tx = pool.begin().await?; f(&mut tx).await?;`).
 
 pub mod activity;
+pub mod comments;
 pub mod lithologies;
+pub mod picks;
 pub mod sea_level;
+pub mod sessions;
 pub mod studies;
 pub mod uploads;
+pub mod users;
 pub mod wells;
 
 use sqlx::sqlite::{SqliteConnectOptions, SqliteJournalMode, SqlitePool, SqlitePoolOptions, SqliteSynchronous};

@@ -23,9 +23,21 @@ pub enum AppError {
     /// The request conflicts with stored data; the text says what to do.
     #[error("{0}")]
     Conflict(String),
+    /// A save made against an old version of the thing; `current` is what is stored now.
+    #[error("{message}")]
+    Stale { message: String, current: Option<serde_json::Value> },
     /// The upload is larger than the server accepts.
     #[error("{0}")]
     TooLarge(String),
+    /// Nobody is signed in; the text says how to.
+    #[error("{0}")]
+    Unauthorized(String),
+    /// The signed-in role may not do this, or the CSRF token is missing or wrong; the text says which.
+    #[error("{0}")]
+    Forbidden(String),
+    /// Too many attempts (sign-in throttling); the text says when to try again.
+    #[error("{0}")]
+    TooManyRequests(String),
     #[error(transparent)]
     Database(#[from] sqlx::Error),
     #[error(transparent)]
@@ -42,19 +54,23 @@ impl From<crate::services::ServiceError> for AppError {
             S::Invalid(msg) => AppError::Rejected(msg),
             S::Problems(p) => AppError::Invalid(p),
             S::Conflict(msg) => AppError::Conflict(msg),
+            S::Stale { message, current } => AppError::Stale { message, current },
             S::Database(e) => AppError::Database(e),
         }
     }
 }
 
 impl AppError {
-    fn status(&self) -> StatusCode {
+    pub fn status(&self) -> StatusCode {
         match self {
             AppError::NotFound(_) => StatusCode::NOT_FOUND,
             AppError::BadRequest(_) => StatusCode::BAD_REQUEST,
             AppError::Invalid(_) | AppError::Rejected(_) => StatusCode::UNPROCESSABLE_ENTITY,
-            AppError::Conflict(_) => StatusCode::CONFLICT,
+            AppError::Conflict(_) | AppError::Stale { .. } => StatusCode::CONFLICT,
             AppError::TooLarge(_) => StatusCode::PAYLOAD_TOO_LARGE,
+            AppError::Unauthorized(_) => StatusCode::UNAUTHORIZED,
+            AppError::Forbidden(_) => StatusCode::FORBIDDEN,
+            AppError::TooManyRequests(_) => StatusCode::TOO_MANY_REQUESTS,
             AppError::Database(_) | AppError::Template(_) | AppError::Internal(_) => {
                 StatusCode::INTERNAL_SERVER_ERROR
             }
@@ -83,7 +99,9 @@ impl AppError {
     /// The JSON body of this error: `{"error": "...", "problems": [...]}`.
     pub fn json_body(&self) -> serde_json::Value {
         match self {
-            AppError::Invalid(problems) => json!({ "error": self.public_message(), "problems": problems }),
+            AppError::Invalid(problems) => {
+                json!({ "error": self.public_message(), "problems": problems })
+            }
             _ => json!({ "error": self.public_message() }),
         }
     }

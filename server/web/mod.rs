@@ -3,13 +3,19 @@
 //! Every page has a JSON twin under `/api/`.
 
 pub mod activity;
+pub mod admin;
 pub mod assets;
+pub mod auth;
 pub mod catalogue;
 pub mod error;
+pub mod exports;
+pub mod live;
 pub mod pages;
 pub mod staging;
+pub mod review;
 pub mod studies;
 pub mod upload;
+pub mod well_charts;
 pub mod wells;
 
 use axum::Router;
@@ -31,6 +37,10 @@ pub struct AppState {
     pub db: SqlitePool,
     /// Uploaded files waiting for the user to check the preview and confirm.
     pub staging: Arc<staging::Staging>,
+    /// Well analyses keyed by the content of their inputs.
+    pub cache: Arc<crate::analysis::cache::AnalysisCache>,
+    /// Live change streams, one per study.
+    pub events: Arc<live::EventHub>,
 }
 
 impl AppState {
@@ -38,6 +48,8 @@ impl AppState {
         AppState {
             db,
             staging: Arc::new(staging::Staging::default()),
+            cache: Arc::new(crate::analysis::cache::AnalysisCache::default()),
+            events: Arc::new(live::EventHub::default()),
         }
     }
 }
@@ -48,15 +60,20 @@ pub fn router(state: AppState) -> Router {
         .route("/", get(|| async { Redirect::to("/studies") }))
         .merge(studies::routes())
         .merge(wells::routes())
+        .merge(review::routes())
         .merge(upload::routes())
         .merge(catalogue::routes())
         .merge(activity::routes())
         .merge(assets::routes())
+        .merge(auth::routes())
+        .merge(admin::routes())
+        // Every route merged above passes the guard (sign-in, role, CSRF): merge new
+        // routers above this line, never below.
+        .layer(axum::middleware::from_fn_with_state(
+            state.clone(),
+            auth::guard,
+        ))
         .layer(axum::extract::DefaultBodyLimit::max(MAX_BODY_BYTES))
         .layer(TraceLayer::new_for_http())
         .with_state(state)
 }
-
-/// The name recorded in the activity log for a change. Until accounts exist every
-/// change is made by the one local user of the server.
-pub const LOCAL_ACTOR: &str = "local user";

@@ -1,6 +1,7 @@
 //! Askama page templates. Each page wraps the view that its JSON twin serialises.
 
 use super::activity::ActivityView;
+use super::admin::{IssuedPassword, UsersView};
 use super::catalogue::CatalogueView;
 use super::studies::{StudiesView, StudyView};
 use super::upload::{PreviewView, UploadView};
@@ -55,6 +56,25 @@ pub struct ActivityPage {
     pub view: ActivityView,
 }
 
+/// The sign-in page; `next` is where to go afterwards (a local path).
+#[derive(Template)]
+#[template(path = "login.html")]
+pub struct LoginPage {
+    pub next: String,
+    pub name: String,
+    pub message: Option<String>,
+}
+
+#[derive(Template)]
+#[template(path = "users.html")]
+pub struct UsersPage {
+    pub view: UsersView,
+    pub notice: Option<String>,
+    /// A password to show this once (a new account or a reset).
+    pub issued: Option<IssuedPassword>,
+    pub problems: Vec<String>,
+}
+
 #[derive(Template)]
 #[template(path = "error.html")]
 pub struct ErrorPage {
@@ -68,6 +88,11 @@ pub mod fmt {
     /// Text equality for templates, whatever the levels of reference.
     pub fn same(a: &str, b: &str) -> bool {
         a == b
+    }
+
+    /// A number as plain text for a form value, or empty when absent.
+    pub fn plain(x: &Option<f64>) -> String {
+        x.map(|v| v.to_string()).unwrap_or_default()
     }
 
     /// A number with `d` decimals, or an en dash when absent.

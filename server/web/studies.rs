@@ -81,7 +81,7 @@ pub struct NewStudy {
     pub description: String,
 }
 
-async fn create_study(state: &AppState, new: NewStudy) -> ApiResult<i64> {
+async fn create_study(state: &AppState, new: NewStudy, actor: &str) -> ApiResult<i64> {
     let name = new.name.trim();
     if name.is_empty() || name.chars().count() > 120 {
         return Err(AppError::BadRequest(
@@ -93,24 +93,26 @@ async fn create_study(state: &AppState, new: NewStudy) -> ApiResult<i64> {
             "A study named '{name}' already exists; choose another name."
         )));
     }
-    crate::services::create_study(&state.db, name, new.description.trim(), super::LOCAL_ACTOR)
+    crate::services::create_study(&state.db, name, new.description.trim(), actor)
         .await
         .map_err(AppError::from)
 }
 
 async fn create_study_form(
     State(state): State<AppState>,
+    user: crate::services::accounts::SignedIn,
     Form(new): Form<NewStudy>,
 ) -> PageResult<Redirect> {
-    let id = create_study(&state, new).await?;
+    let id = create_study(&state, new, &user.name).await?;
     Ok(Redirect::to(&format!("/studies/{id}")))
 }
 
 async fn create_study_json(
     State(state): State<AppState>,
+    user: crate::services::accounts::SignedIn,
     Json(new): Json<NewStudy>,
 ) -> ApiResult<Json<serde_json::Value>> {
-    let id = create_study(&state, new).await?;
+    let id = create_study(&state, new, &user.name).await?;
     Ok(Json(serde_json::json!({ "id": id })))
 }
 

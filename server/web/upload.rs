@@ -7,10 +7,16 @@
 use super::pages::{PreviewPage, UploadPage};
 use super::staging::{StagedFile, StagedUpload};
 use super::studies::{StudyInfo, load_study};
-use super::{ApiResult, AppError, AppState, HtmlError, LOCAL_ACTOR, PageResult};
-use crate::input::{self, ColumnMapping, DepthUnit, FileKind, InputProblem, Preview, PreviewOptions, TopsOptions, WellsOptions};
+use super::{ApiResult, AppError, AppState, HtmlError, PageResult};
+use crate::input::{
+    self, ColumnMapping, DepthUnit, FileKind, InputProblem, Preview, PreviewOptions, TopsOptions,
+    WellsOptions,
+};
 use crate::services::ServiceError;
-use crate::services::import::{self, ImportOutcome, NamedFile, UploadFiles, UploadOptions, ValidatedUpload};
+use crate::services::accounts::SignedIn;
+use crate::services::import::{
+    self, ImportOutcome, NamedFile, UploadFiles, UploadOptions, ValidatedUpload,
+};
 use crate::store;
 use crate::store::uploads::UploadRow;
 use askama::Template;
@@ -26,14 +32,20 @@ pub fn routes() -> Router<AppState> {
     Router::new()
         .route("/studies/{id}/upload", get(upload_page).post(upload_form))
         .route("/api/studies/{id}/upload", get(upload_json))
-        .route("/studies/{id}/upload/{token}", get(preview_page).post(store_form))
+        .route(
+            "/studies/{id}/upload/{token}",
+            get(preview_page).post(store_form),
+        )
         .route("/api/studies/{id}/upload/{token}", get(preview_json))
         .route("/api/studies/{id}/tops", post(tops_api))
 }
 
 /// The file parts a form or API call may carry, by field name.
-const FILE_FIELDS: [(&str, FileKind); 3] =
-    [("tops", FileKind::Tops), ("wells", FileKind::Wells), ("sea_level", FileKind::SeaLevel)];
+const FILE_FIELDS: [(&str, FileKind); 3] = [
+    ("tops", FileKind::Tops),
+    ("wells", FileKind::Wells),
+    ("sea_level", FileKind::SeaLevel),
+];
 
 #[derive(Debug, Serialize)]
 pub struct UploadView {
@@ -57,12 +69,24 @@ async fn upload_view(state: &AppState, id: i64) -> ApiResult<UploadView> {
     })
 }
 
-async fn upload_page(State(state): State<AppState>, Path(id): Path<i64>) -> PageResult<Html<String>> {
+async fn upload_page(
+    State(state): State<AppState>,
+    Path(id): Path<i64>,
+) -> PageResult<Html<String>> {
     let view = upload_view(&state, id).await?;
-    Ok(Html(UploadPage { view, problems: Vec::new() }.render()?))
+    Ok(Html(
+        UploadPage {
+            view,
+            problems: Vec::new(),
+        }
+        .render()?,
+    ))
 }
 
-async fn upload_json(State(state): State<AppState>, Path(id): Path<i64>) -> ApiResult<Json<UploadView>> {
+async fn upload_json(
+    State(state): State<AppState>,
+    Path(id): Path<i64>,
+) -> ApiResult<Json<UploadView>> {
     Ok(Json(upload_view(&state, id).await?))
 }
 
@@ -92,12 +116,18 @@ async fn read_multipart(mut multipart: Multipart) -> Result<MultipartUpload, App
     })? {
         let name = field.name().unwrap_or_default().to_string();
         if let Some((_, _)) = FILE_FIELDS.iter().find(|(f, _)| *f == name) {
-            let file_name = field.file_name().map(str::to_string).filter(|n| !n.is_empty());
+            let file_name = field
+                .file_name()
+                .map(str::to_string)
+                .filter(|n| !n.is_empty());
             let bytes = field.bytes().await.map_err(|e| {
                 if e.status() == StatusCode::PAYLOAD_TOO_LARGE {
                     too_large()
                 } else {
-                    AppError::BadRequest(format!("The file '{name}' could not be read: {}", e.body_text()))
+                    AppError::BadRequest(format!(
+                        "The file '{name}' could not be read: {}",
+                        e.body_text()
+                    ))
                 }
             })?;
             if bytes.len() > limit {
@@ -117,7 +147,12 @@ async fn read_multipart(mut multipart: Multipart) -> Result<MultipartUpload, App
                 _ => files.sea_level = Some(file),
             }
         } else {
-            let text = field.text().await.map_err(|e| AppError::BadRequest(format!("The field '{name}' could not be read: {}", e.body_text())))?;
+            let text = field.text().await.map_err(|e| {
+                AppError::BadRequest(format!(
+                    "The field '{name}' could not be read: {}",
+                    e.body_text()
+                ))
+            })?;
             fields.insert(name, text);
         }
     }
@@ -129,14 +164,19 @@ fn parse_unit(value: Option<&String>, what: &str) -> Result<Option<DepthUnit>, A
         None | Some("") | Some("auto") => Ok(None),
         Some("m") | Some("metres") | Some("meters") => Ok(Some(DepthUnit::Metres)),
         Some("ft") | Some("feet") => Ok(Some(DepthUnit::Feet)),
-        Some(other) => Err(AppError::BadRequest(format!("{what} '{other}' is not a unit: use metres or feet."))),
+        Some(other) => Err(AppError::BadRequest(format!(
+            "{what} '{other}' is not a unit: use metres or feet."
+        ))),
     }
 }
 
 /// Build the reading options from form fields. Two forms of mapping are accepted:
 /// `map.<header>=<column>` (API) and `<file>_col_<index>=<column>` (the preview form,
 /// by header position in the staged file).
-fn upload_options(fields: &HashMap<String, String>, staged: Option<&StagedUpload>) -> Result<UploadOptions, AppError> {
+fn upload_options(
+    fields: &HashMap<String, String>,
+    staged: Option<&StagedUpload>,
+) -> Result<UploadOptions, AppError> {
     let mut tops_map = ColumnMapping::new();
     let mut wells_map = ColumnMapping::new();
     for (key, column) in fields {
@@ -159,7 +199,8 @@ fn upload_options(fields: &HashMap<String, String>, staged: Option<&StagedUpload
         tops: TopsOptions {
             mapping: tops_map,
             depth_unit: parse_unit(fields.get("depth_unit"), "depth_unit")?,
-            water_depth_unit: parse_unit(fields.get("water_depth_unit"), "water_depth_unit")?.unwrap_or_default(),
+            water_depth_unit: parse_unit(fields.get("water_depth_unit"), "water_depth_unit")?
+                .unwrap_or_default(),
             file_name: None,
         },
         wells: WellsOptions {
@@ -172,13 +213,29 @@ fn upload_options(fields: &HashMap<String, String>, staged: Option<&StagedUpload
 fn staged_header(file: Option<&StagedFile>, index: &str) -> Option<String> {
     let file = file?;
     let i: usize = index.parse().ok()?;
-    let p = input::preview(&file.bytes, &PreviewOptions { rows: 0, ..PreviewOptions::new(FileKind::Tops) }).ok()?;
+    let p = input::preview(
+        &file.bytes,
+        &PreviewOptions {
+            rows: 0,
+            ..PreviewOptions::new(FileKind::Tops)
+        },
+    )
+    .ok()?;
     p.headers.get(i).cloned()
 }
 
 /// Validate off the async runtime: a large file takes a moment to parse.
-async fn validate_files(state: &AppState, study_id: i64, files: UploadFiles, options: UploadOptions) -> Result<ValidatedUpload, AppError> {
-    let catalogue: Vec<String> = store::lithologies::list(&state.db, study_id).await?.into_iter().map(|l| l.name).collect();
+async fn validate_files(
+    state: &AppState,
+    study_id: i64,
+    files: UploadFiles,
+    options: UploadOptions,
+) -> Result<ValidatedUpload, AppError> {
+    let catalogue: Vec<String> = store::lithologies::list(&state.db, study_id)
+        .await?
+        .into_iter()
+        .map(|l| l.name)
+        .collect();
     tokio::task::spawn_blocking(move || import::validate(&files, &options, &catalogue))
         .await
         .map_err(|e| AppError::Internal(anyhow::anyhow!("validation task failed: {e}")))?
@@ -186,7 +243,10 @@ async fn validate_files(state: &AppState, study_id: i64, files: UploadFiles, opt
 }
 
 fn truthy(v: Option<&String>) -> bool {
-    matches!(v.map(|s| s.trim().to_ascii_lowercase()).as_deref(), Some("1" | "true" | "yes" | "on"))
+    matches!(
+        v.map(|s| s.trim().to_ascii_lowercase()).as_deref(),
+        Some("1" | "true" | "yes" | "on")
+    )
 }
 
 /// The API's answer to a stored or checked upload.
@@ -204,7 +264,12 @@ struct TopsApiAnswer {
 /// fields `depth_unit`, `water_depth_unit`, `map.<header>=<column>`, `replace`, `dry_run`).
 /// 200 with what was stored (or would be, with `dry_run`); 422 with every problem;
 /// 409 when wells exist and `replace` was not given.
-async fn tops_api(State(state): State<AppState>, Path(id): Path<i64>, multipart: Multipart) -> ApiResult<Response> {
+async fn tops_api(
+    State(state): State<AppState>,
+    user: SignedIn,
+    Path(id): Path<i64>,
+    multipart: Multipart,
+) -> ApiResult<Response> {
     load_study(&state, id).await?;
     let MultipartUpload { files, fields } = read_multipart(multipart).await?;
     let options = upload_options(&fields, None)?;
@@ -212,7 +277,13 @@ async fn tops_api(State(state): State<AppState>, Path(id): Path<i64>, multipart:
     let existing = import::existing_wells(&state.db, id, &upload).await?;
     let wells = upload.well_names();
     if truthy(fields.get("dry_run")) {
-        let answer = TopsApiAnswer { stored: false, wells, existing_wells: existing, notes: upload.notes(), outcome: None };
+        let answer = TopsApiAnswer {
+            stored: false,
+            wells,
+            existing_wells: existing,
+            notes: upload.notes(),
+            outcome: None,
+        };
         return Ok(Json(answer).into_response());
     }
     let replace = truthy(fields.get("replace"));
@@ -225,26 +296,56 @@ async fn tops_api(State(state): State<AppState>, Path(id): Path<i64>, multipart:
     }
     // The store step checks again inside its transaction: a well added by another
     // upload since the check above is refused, not silently replaced.
-    let outcome = import::store_upload(&state.db, id, &upload, replace, LOCAL_ACTOR).await?;
-    let answer = TopsApiAnswer { stored: true, wells, existing_wells: existing, notes: outcome.notes.clone(), outcome: Some(outcome) };
+    let outcome = import::store_upload(&state.db, id, &upload, replace, &user.name).await?;
+    let answer = TopsApiAnswer {
+        stored: true,
+        wells,
+        existing_wells: existing,
+        notes: outcome.notes.clone(),
+        outcome: Some(outcome),
+    };
     Ok(Json(answer).into_response())
 }
 
 /// Browser step 1: hold the files and show the preview.
-async fn upload_form(State(state): State<AppState>, Path(id): Path<i64>, multipart: Multipart) -> PageResult<Response> {
+async fn upload_form(
+    State(state): State<AppState>,
+    Path(id): Path<i64>,
+    multipart: Multipart,
+) -> PageResult<Response> {
     load_study(&state, id).await?;
     let MultipartUpload { files, fields } = read_multipart(multipart).await?;
     if files.tops.is_none() && files.wells.is_none() && files.sea_level.is_none() {
         let view = upload_view(&state, id).await?;
-        let page = UploadPage { view, problems: vec!["Choose at least one file to upload.".into()] };
+        let page = UploadPage {
+            view,
+            problems: vec!["Choose at least one file to upload.".into()],
+        };
         return Ok((StatusCode::UNPROCESSABLE_ENTITY, Html(page.render()?)).into_response());
     }
-    let staged_file = |f: Option<NamedFile>| f.map(|f| StagedFile { file_name: f.file_name, bytes: f.bytes });
-    let token = state.staging.put(StagedUpload::new(id, staged_file(files.tops), staged_file(files.wells), staged_file(files.sea_level)));
+    let staged_file = |f: Option<NamedFile>| {
+        f.map(|f| StagedFile {
+            file_name: f.file_name,
+            bytes: f.bytes,
+        })
+    };
+    let token = state.staging.put(StagedUpload::new(
+        id,
+        staged_file(files.tops),
+        staged_file(files.wells),
+        staged_file(files.sea_level),
+    ));
     let mut query = String::new();
     // Only the known unit words travel in the URL; anything else was refused above.
     if let Some(unit) = parse_unit(fields.get("depth_unit"), "depth_unit")? {
-        query = format!("?depth_unit={}", if unit == DepthUnit::Feet { "feet" } else { "metres" });
+        query = format!(
+            "?depth_unit={}",
+            if unit == DepthUnit::Feet {
+                "feet"
+            } else {
+                "metres"
+            }
+        );
     }
     Ok(Redirect::to(&format!("/studies/{id}/upload/{token}{query}")).into_response())
 }
@@ -278,7 +379,12 @@ pub struct PreviewView {
     pub needs_replace_confirmation: bool,
 }
 
-async fn preview_view(state: &AppState, id: i64, token: &str, fields: &HashMap<String, String>) -> ApiResult<PreviewView> {
+async fn preview_view(
+    state: &AppState,
+    id: i64,
+    token: &str,
+    fields: &HashMap<String, String>,
+) -> ApiResult<PreviewView> {
     let study = load_study(state, id).await?;
     let staged = state
         .staging
@@ -290,38 +396,69 @@ async fn preview_view(state: &AppState, id: i64, token: &str, fields: &HashMap<S
     for (field, kind) in FILE_FIELDS {
         let (file, mapping, label) = match kind {
             FileKind::Tops => (staged.tops.as_ref(), options.tops.mapping.clone(), "Tops"),
-            FileKind::Wells => (staged.wells.as_ref(), options.wells.mapping.clone(), "Wells"),
+            FileKind::Wells => (
+                staged.wells.as_ref(),
+                options.wells.mapping.clone(),
+                "Wells",
+            ),
             _ => (staged.sea_level.as_ref(), ColumnMapping::new(), "Sea level"),
         };
         let Some(file) = file else { continue };
-        let opts = PreviewOptions { mapping, file_name: Some(file.file_name.clone()), ..PreviewOptions::new(kind) };
+        let opts = PreviewOptions {
+            mapping,
+            file_name: Some(file.file_name.clone()),
+            ..PreviewOptions::new(kind)
+        };
         let preview = input::preview(&file.bytes, &opts).ok();
         let chosen = preview
             .as_ref()
             .map(|p| {
                 p.headers
                     .iter()
-                    .map(|h| p.matched.iter().find(|m| &m.header == h).map(|m| m.column.clone()).unwrap_or_default())
+                    .map(|h| {
+                        p.matched
+                            .iter()
+                            .find(|m| &m.header == h)
+                            .map(|m| m.column.clone())
+                            .unwrap_or_default()
+                    })
                     .collect()
             })
             .unwrap_or_default();
-        files.push(FilePreview { field, label, file_name: file.file_name.clone(), columns: kind.columns(), preview, chosen });
+        files.push(FilePreview {
+            field,
+            label,
+            file_name: file.file_name.clone(),
+            columns: kind.columns(),
+            preview,
+            chosen,
+        });
     }
     let unit_text = |u: Option<DepthUnit>| match u {
         None => "auto",
         Some(DepthUnit::Metres) => "metres",
         Some(DepthUnit::Feet) => "feet",
     };
-    let as_named = |f: &Option<StagedFile>| f.as_ref().map(|f| NamedFile { file_name: f.file_name.clone(), bytes: f.bytes.clone() });
-    let upload_files = UploadFiles { tops: as_named(&staged.tops), wells: as_named(&staged.wells), sea_level: as_named(&staged.sea_level) };
-    let (problems, wells_in_upload, existing_wells, notes) = match validate_files(state, id, upload_files, options.clone()).await {
-        Ok(upload) => {
-            let existing = import::existing_wells(&state.db, id, &upload).await?;
-            (Vec::new(), upload.well_names(), existing, upload.notes())
-        }
-        Err(AppError::Invalid(problems)) => (problems, Vec::new(), Vec::new(), Vec::new()),
-        Err(e) => return Err(e),
+    let as_named = |f: &Option<StagedFile>| {
+        f.as_ref().map(|f| NamedFile {
+            file_name: f.file_name.clone(),
+            bytes: f.bytes.clone(),
+        })
     };
+    let upload_files = UploadFiles {
+        tops: as_named(&staged.tops),
+        wells: as_named(&staged.wells),
+        sea_level: as_named(&staged.sea_level),
+    };
+    let (problems, wells_in_upload, existing_wells, notes) =
+        match validate_files(state, id, upload_files, options.clone()).await {
+            Ok(upload) => {
+                let existing = import::existing_wells(&state.db, id, &upload).await?;
+                (Vec::new(), upload.well_names(), existing, upload.notes())
+            }
+            Err(AppError::Invalid(problems)) => (problems, Vec::new(), Vec::new(), Vec::new()),
+            Err(e) => return Err(e),
+        };
     Ok(PreviewView {
         study: StudyInfo::from(&study),
         token: token.to_string(),
@@ -343,7 +480,11 @@ async fn preview_page(
     Query(fields): Query<HashMap<String, String>>,
 ) -> PageResult<Response> {
     let view = preview_view(&state, id, &token, &fields).await?;
-    let status = if view.ready { StatusCode::OK } else { StatusCode::UNPROCESSABLE_ENTITY };
+    let status = if view.ready {
+        StatusCode::OK
+    } else {
+        StatusCode::UNPROCESSABLE_ENTITY
+    };
     Ok((status, Html(PreviewPage { view }.render()?)).into_response())
 }
 
@@ -363,24 +504,41 @@ pub fn is_chosen(chosen: &[String], index: &usize, column: &str) -> bool {
 /// Browser step 2: store the held files with the chosen mapping, or show why not.
 async fn store_form(
     State(state): State<AppState>,
+    user: SignedIn,
     Path((id, token)): Path<(i64, String)>,
     Form(fields): Form<HashMap<String, String>>,
 ) -> PageResult<Response> {
     let mut view = preview_view(&state, id, &token, &fields).await?;
     if !view.ready {
-        return Ok((StatusCode::UNPROCESSABLE_ENTITY, Html(PreviewPage { view }.render()?)).into_response());
+        return Ok((
+            StatusCode::UNPROCESSABLE_ENTITY,
+            Html(PreviewPage { view }.render()?),
+        )
+            .into_response());
     }
     let replace = truthy(fields.get("replace"));
     if !view.existing_wells.is_empty() && !replace {
         view.needs_replace_confirmation = true;
         return Ok((StatusCode::CONFLICT, Html(PreviewPage { view }.render()?)).into_response());
     }
-    let staged = state.staging.get(&token, id).ok_or_else(|| AppError::NotFound("this upload".into()))?;
+    let staged = state
+        .staging
+        .get(&token, id)
+        .ok_or_else(|| AppError::NotFound("this upload".into()))?;
     let options = upload_options(&fields, Some(&staged))?;
-    let as_named = |f: Option<StagedFile>| f.map(|f| NamedFile { file_name: f.file_name, bytes: f.bytes });
-    let files = UploadFiles { tops: as_named(staged.tops), wells: as_named(staged.wells), sea_level: as_named(staged.sea_level) };
+    let as_named = |f: Option<StagedFile>| {
+        f.map(|f| NamedFile {
+            file_name: f.file_name,
+            bytes: f.bytes,
+        })
+    };
+    let files = UploadFiles {
+        tops: as_named(staged.tops),
+        wells: as_named(staged.wells),
+        sea_level: as_named(staged.sea_level),
+    };
     let upload = validate_files(&state, id, files, options).await?;
-    match import::store_upload(&state.db, id, &upload, replace, LOCAL_ACTOR).await {
+    match import::store_upload(&state.db, id, &upload, replace, &user.name).await {
         Ok(_) => {
             state.staging.remove(&token);
             Ok(Redirect::to(&format!("/studies/{id}")).into_response())
@@ -388,7 +546,11 @@ async fn store_form(
         Err(ServiceError::Problems(problems)) => {
             view.problems = problems;
             view.ready = false;
-            Ok((StatusCode::UNPROCESSABLE_ENTITY, Html(PreviewPage { view }.render()?)).into_response())
+            Ok((
+                StatusCode::UNPROCESSABLE_ENTITY,
+                Html(PreviewPage { view }.render()?),
+            )
+                .into_response())
         }
         Err(e) => Err(HtmlError(e.into())),
     }

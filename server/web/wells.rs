@@ -1,28 +1,36 @@
 //! The well page: the column of surfaces and units, and (with the analysis) the
 //! restored column and backstripping results at each age.
 
+use super::exports::{self, ExportMeta};
 use super::pages::WellPage;
 use super::studies::{StudyInfo, load_study};
-use super::{ApiResult, AppError, AppState, PageResult};
-use super::exports::{self, ExportMeta};
 use super::well_charts;
+use super::{ApiResult, AppError, AppState, PageResult};
 use crate::analysis::{self, StudyInputs, WellAnalysis, contract::WellOut};
 use crate::charts::{self, ChartSize};
 use crate::services::results::{self, WellResult};
 use crate::store;
+use crate::store::comments::CommentRow;
+use crate::store::picks::PickRow;
+use axum::extract::Query;
+use axum::http::StatusCode;
+use axum::response::IntoResponse;
 use crate::store::wells::{SurfaceRow, WellRow};
 use askama::Template;
 use axum::extract::{Path, State};
 use axum::response::{Html, Response};
 use axum::routing::get;
 use axum::{Json, Router};
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 pub fn routes() -> Router<AppState> {
     Router::new()
         .route("/studies/{id}/wells/{well_id}", get(well_page))
         .route("/api/studies/{id}/wells/{well_id}", get(well_json))
-        .route("/studies/{id}/wells/{well_id}/download/{file}", get(well_download))
+        .route(
+            "/studies/{id}/wells/{well_id}/download/{file}",
+            get(well_download),
+        )
 }
 
 /// One row of the column table: a surface and the unit below it.
@@ -91,6 +99,15 @@ pub struct WellView {
     pub restored: Vec<RestoredStepView>,
     /// Why the well could not be analysed, in words a user can act on.
     pub analysis_error: Option<String>,
+    /// The team's picks (rift events 1 and 2) and the discussion.
+    pub picks: Vec<PickRow>,
+    pub comments: Vec<CommentRow>,
+    /// What the phase search proposes on its own.
+    pub proposal: Option<ProposalView>,
+    /// The trial timing shown instead of the saved picks, if any.
+    pub trial: Option<Trial>,
+    #[serde(skip)]
+    pub message: Option<PageMessage>,
     #[serde(skip)]
     pub charts: WellCharts,
 }
@@ -107,7 +124,10 @@ fn restored_steps(a: &WellAnalysis) -> Vec<RestoredStepView> {
                 .units
                 .iter()
                 .map(|u| RestoredUnitView {
-                    top_horizon: h.top_horizon(u).map(str::to_string).unwrap_or_else(|| format!("eroded section on {}", h.base_horizon(u))),
+                    top_horizon: h
+                        .top_horizon(u)
+                        .map(str::to_string)
+                        .unwrap_or_else(|| format!("eroded section on {}", h.base_horizon(u))),
                     base_horizon: h.base_horizon(u).to_string(),
                     lithology: h.lithology(u).to_string(),
                     top_m: u.top_m,
@@ -130,18 +150,41 @@ pub struct WellCharts {
 }
 
 /// A well, its stored column and its (cached) analysis.
-async fn well_result(state: &AppState, study_id: i64, well_id: i64) -> ApiResult<(StudyInfo, StudyInputs, WellResult)> {
+async fn well_result(
+    state: &AppState,
+    study_id: i64,
+    well_id: i64,
+    trial: Option<&Trial>,
+) -> ApiResult<(StudyInfo, StudyInputs, WellResult)> {
     let study = load_study(state, study_id).await?;
     let well = store::wells::get(&state.db, study_id, well_id)
         .await?
         .ok_or_else(|| AppError::NotFound(format!("well {well_id} in study {study_id}")))?;
-    let timing = None;
-    let (inputs, result) = results::well_result(&state.db, &state.cache, study_id, well, timing).await?;
+    // A trial timing (the pick editor's preview) wins over the team's saved picks.
+    let timing = match trial.and_then(Trial::timing) {
+        Some(t) => Some(t),
+        None => {
+            let picks = store::picks::for_well(&state.db, well.id).await?;
+            (!picks.is_empty()).then(|| picks.iter().map(|p| (p.rift_onset_ma, p.rift_end_ma)).collect())
+        }
+    };
+    let (inputs, result) =
+        results::well_result(&state.db, &state.cache, study_id, well, timing).await?;
     Ok((StudyInfo::from(&study), inputs, result))
 }
 
-async fn well_view(state: &AppState, study_id: i64, well_id: i64) -> ApiResult<WellView> {
-    let (study, _inputs, r) = well_result(state, study_id, well_id).await?;
+async fn well_view(state: &AppState, study_id: i64, well_id: i64, trial: Option<&Trial>) -> ApiResult<WellView> {
+    let (study, _inputs, r) = well_result(state, study_id, well_id, trial).await?;
+    let picks = store::picks::for_well(&state.db, well_id).await?;
+    let comments = store::comments::for_well(&state.db, well_id).await?;
+    // The automatic proposal beside the team's pick (cached, so cheap when unchanged).
+    let uses_timing = !picks.is_empty() || trial.and_then(Trial::timing).is_some();
+    let proposal = if uses_timing {
+        let (_, p) = results::well_result(&state.db, &state.cache, study_id, r.well.clone(), None).await?;
+        p.outcome.ok().map(|a| ProposalView::of(&a))
+    } else {
+        r.outcome.as_ref().ok().map(|a| ProposalView::of(a))
+    };
     let (analysis, restored, analysis_error) = match &r.outcome {
         Ok(a) => (Some(analysis::well_out(a)), restored_steps(a), None),
         Err(e) => (None, Vec::new(), Some(e.clone())),
@@ -150,9 +193,15 @@ async fn well_view(state: &AppState, study_id: i64, well_id: i64) -> ApiResult<W
         Ok(a) => {
             let size = ChartSize::default();
             WellCharts {
-                subsidence: charts::subsidence_chart(&well_charts::subsidence_data(&r.well.name, a), size),
+                subsidence: charts::subsidence_chart(
+                    &well_charts::subsidence_data(&r.well.name, a),
+                    size,
+                ),
                 burial: charts::burial_chart(&well_charts::burial_data(&r.well.name, a), size),
-                heat_flow: charts::heat_flow_chart(&well_charts::heat_flow_data(&r.well.name, a), size),
+                heat_flow: charts::heat_flow_chart(
+                    &well_charts::heat_flow_data(&r.well.name, a),
+                    size,
+                ),
             }
         }
         Err(_) => WellCharts::default(),
@@ -164,23 +213,105 @@ async fn well_view(state: &AppState, study_id: i64, well_id: i64) -> ApiResult<W
         analysis,
         restored,
         analysis_error,
+        picks,
+        comments,
+        proposal,
+        trial: trial.copied().filter(|t| t.timing().is_some()),
+        message: None,
         charts,
     })
+}
+
+impl WellView {
+    /// The team's pick of rift event 1 or 2.
+    pub fn pick(&self, event: &i64) -> Option<&PickRow> {
+        self.picks.iter().find(|p| p.event == *event)
+    }
+}
+
+/// The automatic proposal, shown beside the team's pick.
+#[derive(Debug, Clone, Serialize)]
+pub struct ProposalView {
+    pub rift_onset_ma: Option<f64>,
+    pub rift_end_ma: Option<f64>,
+    pub beta: Option<f64>,
+    pub rms_misfit_m: Option<f64>,
+    pub events: usize,
+}
+
+impl ProposalView {
+    fn of(a: &WellAnalysis) -> Self {
+        let st = analysis::well_out(a).stretching;
+        ProposalView {
+            rift_onset_ma: st.as_ref().map(|s| s.rift_onset_ma),
+            rift_end_ma: st.as_ref().map(|s| s.rift_end_ma),
+            beta: st.as_ref().map(|s| s.beta),
+            rms_misfit_m: st.as_ref().map(|s| s.rms_misfit_m),
+            events: st.as_ref().map(|s| s.rift_events.len()).unwrap_or(0),
+        }
+    }
+}
+
+/// A rift timing tried in the pick editor without saving (query parameters
+/// `trial_onset_ma`, `trial_end_ma`): the page refits and redraws with it.
+#[derive(Debug, Clone, Copy, Default, Deserialize, Serialize)]
+pub struct Trial {
+    #[serde(alias = "rift_onset_ma")]
+    pub trial_onset_ma: Option<f64>,
+    #[serde(alias = "rift_end_ma")]
+    pub trial_end_ma: Option<f64>,
+}
+
+impl Trial {
+    fn timing(&self) -> Option<Vec<(f64, f64)>> {
+        match (self.trial_onset_ma, self.trial_end_ma) {
+            (Some(o), Some(e)) if o.is_finite() && e.is_finite() => Some(vec![(o, e)]),
+            _ => None,
+        }
+    }
+}
+
+/// A message at the top of the well page after a refused save.
+#[derive(Debug, Clone, Serialize)]
+pub struct PageMessage {
+    pub problem: bool,
+    pub text: String,
+}
+
+impl PageMessage {
+    pub fn problem(text: String) -> Self {
+        PageMessage { problem: true, text }
+    }
+}
+
+/// Render the well page with a status and an optional message (used after a refused save).
+pub async fn render_well_page(
+    state: &AppState,
+    study_id: i64,
+    well_id: i64,
+    trial: Option<&Trial>,
+    message: Option<PageMessage>,
+    status: StatusCode,
+) -> PageResult<Response> {
+    let mut view = well_view(state, study_id, well_id, trial).await?;
+    view.message = message;
+    Ok((status, Html(WellPage { view }.render()?)).into_response())
 }
 
 async fn well_page(
     State(state): State<AppState>,
     Path((id, well_id)): Path<(i64, i64)>,
-) -> PageResult<Html<String>> {
-    let view = well_view(&state, id, well_id).await?;
-    Ok(Html(WellPage { view }.render()?))
+    Query(trial): Query<Trial>,
+) -> PageResult<Response> {
+    render_well_page(&state, id, well_id, Some(&trial), None, StatusCode::OK).await
 }
 
 async fn well_json(
     State(state): State<AppState>,
     Path((id, well_id)): Path<(i64, i64)>,
+    Query(trial): Query<Trial>,
 ) -> ApiResult<Json<WellView>> {
-    Ok(Json(well_view(&state, id, well_id).await?))
+    Ok(Json(well_view(&state, id, well_id, Some(&trial)).await?))
 }
 
 /// Downloads of the well page: charts as SVG, tables as CSV, the analysis as JSON.
@@ -188,7 +319,7 @@ async fn well_download(
     State(state): State<AppState>,
     Path((id, well_id, file)): Path<(i64, i64, String)>,
 ) -> ApiResult<Response> {
-    let (study, inputs, r) = well_result(&state, id, well_id).await?;
+    let (study, inputs, r) = well_result(&state, id, well_id, None).await?;
     let meta = ExportMeta::new(&study.name, &inputs);
     let name = &r.well.name;
     let a = r
@@ -196,25 +327,63 @@ async fn well_download(
         .as_ref()
         .map_err(|e| AppError::Rejected(format!("Well {name} could not be analysed: {e}")))?;
     let size = ChartSize::default();
-    let svg = |body: String| exports::download("image/svg+xml", &format!("{name}-{file}"), meta.stamp_svg(&body));
+    let svg = |body: String| {
+        exports::download(
+            "image/svg+xml",
+            &format!("{name}-{file}"),
+            meta.stamp_svg(&body),
+        )
+    };
     let csv = |what: &str, header: &[&str], rows: Vec<Vec<String>>| {
-        exports::download("text/csv; charset=utf-8", &format!("{name}-{file}"), exports::csv_text(&meta, what, header, &rows))
+        exports::download(
+            "text/csv; charset=utf-8",
+            &format!("{name}-{file}"),
+            exports::csv_text(&meta, what, header, &rows),
+        )
     };
     Ok(match file.as_str() {
-        "subsidence.svg" => svg(charts::subsidence_chart(&well_charts::subsidence_data(name, a), size)),
-        "burial.svg" => svg(charts::burial_chart(&well_charts::burial_data(name, a), size)),
-        "heat-flow.svg" => svg(charts::heat_flow_chart(&well_charts::heat_flow_data(name, a), size)),
+        "subsidence.svg" => svg(charts::subsidence_chart(
+            &well_charts::subsidence_data(name, a),
+            size,
+        )),
+        "burial.svg" => svg(charts::burial_chart(
+            &well_charts::burial_data(name, a),
+            size,
+        )),
+        "heat-flow.svg" => svg(charts::heat_flow_chart(
+            &well_charts::heat_flow_data(name, a),
+            size,
+        )),
         "history.csv" => {
             let out = analysis::well_out(a);
-            csv(&format!("Backstripping history of well {name}"), &analysis::CSV_HEADER, analysis::csv_rows(&out))
+            csv(
+                &format!("Backstripping history of well {name}"),
+                &analysis::CSV_HEADER,
+                analysis::csv_rows(&out),
+            )
         }
         "heat-flow.csv" => {
             let rows = a
                 .interpretation
                 .as_ref()
-                .map(|i| i.heat_flow_grid.iter().map(|p| vec![name.clone(), format!("{:.3}", p.age_ma), format!("{:.3}", p.value)]).collect())
+                .map(|i| {
+                    i.heat_flow_grid
+                        .iter()
+                        .map(|p| {
+                            vec![
+                                name.clone(),
+                                format!("{:.3}", p.age_ma),
+                                format!("{:.3}", p.value),
+                            ]
+                        })
+                        .collect()
+                })
                 .unwrap_or_default();
-            csv(&format!("Surface heat flow of the fitted model, well {name}"), &["well", "age_ma", "heat_flow_mw_m2"], rows)
+            csv(
+                &format!("Surface heat flow of the fitted model, well {name}"),
+                &["well", "age_ma", "heat_flow_mw_m2"],
+                rows,
+            )
         }
         "column.csv" => {
             let rows = column_rows(&r.surfaces)
@@ -235,13 +404,27 @@ async fn well_download(
                 .collect();
             csv(
                 &format!("Column of well {name}"),
-                &["well", "horizon", "depth_m", "age_ma", "lithology", "water_depth_min_m", "water_depth_max_m", "eroded_m", "eroded_at_ma"],
+                &[
+                    "well",
+                    "horizon",
+                    "depth_m",
+                    "age_ma",
+                    "lithology",
+                    "water_depth_min_m",
+                    "water_depth_max_m",
+                    "eroded_m",
+                    "eroded_at_ma",
+                ],
                 rows,
             )
         }
         "analysis.json" => {
             let body = serde_json::json!({ "export": meta, "wells": [analysis::well_out(a)] });
-            exports::download("application/json", &format!("{name}-analysis.json"), serde_json::to_string_pretty(&body).unwrap_or_default())
+            exports::download(
+                "application/json",
+                &format!("{name}-analysis.json"),
+                serde_json::to_string_pretty(&body).unwrap_or_default(),
+            )
         }
         other => return Err(AppError::NotFound(format!("download '{other}'"))),
     })

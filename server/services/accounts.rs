@@ -1,0 +1,469 @@
+//! Accounts and sessions: creating users and changing them (each change with its
+//! activity row, outside any study), signing in with throttling, and resolving the
+//! session of a request.
+//!
+//! Passwords are hashed off the async runtime and never stored, logged or recorded;
+//! a generated password is returned once to the caller that shows it.
+
+use super::ServiceError;
+use crate::auth::{self, Role, password, token};
+use crate::store;
+use crate::store::activity::Change;
+use crate::store::sessions::NewSession;
+use crate::store::users::UserRow;
+use sqlx::{SqliteConnection, SqlitePool};
+
+/// The name of the account made on first start.
+pub const FIRST_ADMIN_NAME: &str = "admin";
+/// Who the activity log names for the first-start account.
+pub const FIRST_START_ACTOR: &str = "first start";
+/// Who the activity log names for accounts added with `sagline user add`.
+pub const COMMAND_LINE_ACTOR: &str = "command line";
+/// Longest user name accepted.
+pub const MAX_NAME_CHARS: usize = 64;
+
+/// The signed-in account of a request, from its session.
+#[derive(Debug, Clone)]
+pub struct SignedIn {
+    pub user_id: i64,
+    pub name: String,
+    pub role: Role,
+    /// The session's token for state-changing requests (header `X-CSRF-Token`, form
+    /// field or query parameter `csrf_token`).
+    pub csrf_token: String,
+    /// The digest the session is stored by.
+    pub session_digest: String,
+}
+
+/// A new account and, when the server chose it, its password (to show once).
+#[derive(Debug, Clone)]
+pub struct CreatedUser {
+    pub user: UserRow,
+    pub generated_password: Option<String>,
+}
+
+/// A successful sign-in: the cookie token (known only to the browser from now on) and the account.
+#[derive(Debug, Clone)]
+pub struct NewLogin {
+    pub session_token: String,
+    pub user: SignedIn,
+}
+
+/// Why a sign-in was refused, in words for the person signing in.
+#[derive(Debug, thiserror::Error)]
+pub enum LoginError {
+    #[error("Wrong user name or password.")]
+    WrongCredentials,
+    #[error("This account is disabled; ask an admin to enable it.")]
+    Disabled,
+    /// Too many failures for this name or from this address within the window.
+    #[error("{}", throttle_message(*.retry_at, *.now))]
+    Throttled { retry_at: i64, now: i64 },
+    #[error(transparent)]
+    Database(#[from] sqlx::Error),
+}
+
+impl LoginError {
+    /// Seconds until a throttled sign-in may be tried again.
+    pub fn retry_after_secs(&self) -> Option<i64> {
+        match self {
+            LoginError::Throttled { retry_at, now } => Some((retry_at - now).max(1)),
+            _ => None,
+        }
+    }
+}
+
+fn throttle_message(retry_at: i64, now: i64) -> String {
+    let minutes = ((retry_at - now).max(1) + 59) / 60;
+    let of_day = retry_at.rem_euclid(86_400);
+    format!(
+        "Too many failed sign-ins for this user name or from this address. Try again in {minutes} minute(s), after {:02}:{:02} UTC.",
+        of_day / 3600,
+        of_day % 3600 / 60
+    )
+}
+
+/// Hash off the async runtime: Argon2 is deliberately slow.
+async fn hash_password(password: String) -> Result<String, ServiceError> {
+    tokio::task::spawn_blocking(move || password::hash(&password))
+        .await
+        .map_err(|e| ServiceError::Invalid(format!("the password could not be hashed: {e}")))?
+        .map_err(|e| ServiceError::Invalid(e.to_string()))
+}
+
+fn check_name(name: &str) -> Result<&str, ServiceError> {
+    let name = name.trim();
+    let fine = !name.is_empty()
+        && name.chars().count() <= MAX_NAME_CHARS
+        && name
+            .chars()
+            .all(|c| c.is_alphanumeric() || "._-@".contains(c));
+    if fine {
+        Ok(name)
+    } else {
+        Err(ServiceError::Invalid(format!(
+            "A user name needs 1 to {MAX_NAME_CHARS} letters, digits or . _ - @ (no spaces)."
+        )))
+    }
+}
+
+fn describe(user: &UserRow) -> String {
+    format!(
+        "role {}{}",
+        user.role,
+        if user.disabled { ", disabled" } else { "" }
+    )
+}
+
+async fn load_user(conn: &mut SqliteConnection, user_id: i64) -> Result<UserRow, ServiceError> {
+    store::users::get(&mut *conn, user_id)
+        .await?
+        .ok_or_else(|| ServiceError::NotFound(format!("user {user_id}")))
+}
+
+async fn record(
+    conn: &mut SqliteConnection,
+    actor: &str,
+    action: &str,
+    subject: &str,
+    before: Option<String>,
+    after: Option<String>,
+) -> Result<(), sqlx::Error> {
+    store::activity::record(
+        conn,
+        None,
+        Change {
+            actor,
+            action,
+            subject,
+            before,
+            after,
+        },
+    )
+    .await
+}
+
+/// Add an account. Without `password` the server generates one and returns it.
+pub async fn create_user(
+    db: &SqlitePool,
+    name: &str,
+    role: Role,
+    password: Option<&str>,
+    actor: &str,
+) -> Result<CreatedUser, ServiceError> {
+    let name = check_name(name)?;
+    if let Some(p) = password {
+        password::check_chosen(p).map_err(ServiceError::Invalid)?;
+    }
+    if store::users::find_by_name(db, name).await?.is_some() {
+        return Err(ServiceError::Conflict(format!(
+            "An account named '{name}' already exists; choose another name."
+        )));
+    }
+    let generated_password = password.is_none().then(password::generate);
+    let chosen = password
+        .map(str::to_string)
+        .or_else(|| generated_password.clone())
+        .unwrap_or_default();
+    let hash = hash_password(chosen).await?;
+    let mut tx = db.begin().await?;
+    let id = match store::users::insert(&mut *tx, name, role, &hash).await {
+        Ok(id) => id,
+        // Added by someone else since the check above.
+        Err(sqlx::Error::Database(e)) if e.is_unique_violation() => {
+            return Err(ServiceError::Conflict(format!(
+                "An account named '{name}' already exists; choose another name."
+            )));
+        }
+        Err(e) => return Err(e.into()),
+    };
+    let user = load_user(&mut tx, id).await?;
+    record(
+        &mut tx,
+        actor,
+        "add user",
+        name,
+        None,
+        Some(describe(&user)),
+    )
+    .await?;
+    tx.commit().await?;
+    tracing::info!(user = %name, role = %role, actor, "account added");
+    Ok(CreatedUser {
+        user,
+        generated_password,
+    })
+}
+
+/// On first start (no account at all), create `admin` with a generated password and
+/// return that password, to print once. Later starts return `None`.
+pub async fn ensure_first_admin(db: &SqlitePool) -> Result<Option<String>, ServiceError> {
+    if store::users::count(db).await? > 0 {
+        return Ok(None);
+    }
+    let created = create_user(db, FIRST_ADMIN_NAME, Role::Admin, None, FIRST_START_ACTOR).await?;
+    Ok(created.generated_password)
+}
+
+/// Refuse a change that would leave no admin able to sign in.
+async fn keep_an_admin(
+    conn: &mut SqliteConnection,
+    user: &UserRow,
+    what: &str,
+) -> Result<(), ServiceError> {
+    if user.role == Role::Admin
+        && !user.disabled
+        && store::users::count_enabled_admins(&mut *conn).await? <= 1
+    {
+        return Err(ServiceError::Conflict(format!(
+            "'{}' is the last admin who can sign in; {what} would leave nobody to manage accounts. Make another account admin first.",
+            user.name
+        )));
+    }
+    Ok(())
+}
+
+/// Give an account another role.
+pub async fn change_role(
+    db: &SqlitePool,
+    user_id: i64,
+    role: Role,
+    actor: &str,
+) -> Result<UserRow, ServiceError> {
+    let mut tx = db.begin().await?;
+    let before = load_user(&mut tx, user_id).await?;
+    if before.role == role {
+        return Ok(before);
+    }
+    if role != Role::Admin {
+        keep_an_admin(&mut tx, &before, "taking the admin role away").await?;
+    }
+    store::users::set_role(&mut *tx, user_id, role).await?;
+    let after = load_user(&mut tx, user_id).await?;
+    record(
+        &mut tx,
+        actor,
+        "change role",
+        &after.name,
+        Some(describe(&before)),
+        Some(describe(&after)),
+    )
+    .await?;
+    tx.commit().await?;
+    Ok(after)
+}
+
+/// Give an account a new generated password (returned, to show once) and end its sessions.
+pub async fn reset_password(
+    db: &SqlitePool,
+    user_id: i64,
+    actor: &str,
+) -> Result<(UserRow, String), ServiceError> {
+    let user = store::users::get(db, user_id)
+        .await?
+        .ok_or_else(|| ServiceError::NotFound(format!("user {user_id}")))?;
+    let new_password = password::generate();
+    let hash = hash_password(new_password.clone()).await?;
+    let mut tx = db.begin().await?;
+    load_user(&mut tx, user_id).await?;
+    store::users::set_password_hash(&mut *tx, user_id, &hash).await?;
+    let ended = store::sessions::delete_for_user(&mut *tx, user_id).await?;
+    record(
+        &mut tx,
+        actor,
+        "reset password",
+        &user.name,
+        None,
+        Some(format!("new password issued; {ended} session(s) ended")),
+    )
+    .await?;
+    tx.commit().await?;
+    Ok((user, new_password))
+}
+
+/// Disable an account (its sessions end at once) or enable it again.
+pub async fn set_disabled(
+    db: &SqlitePool,
+    user_id: i64,
+    disabled: bool,
+    actor: &str,
+) -> Result<UserRow, ServiceError> {
+    let mut tx = db.begin().await?;
+    let before = load_user(&mut tx, user_id).await?;
+    if before.disabled == disabled {
+        return Ok(before);
+    }
+    if disabled {
+        keep_an_admin(&mut tx, &before, "disabling it").await?;
+        store::sessions::delete_for_user(&mut *tx, user_id).await?;
+    }
+    store::users::set_disabled(&mut *tx, user_id, disabled).await?;
+    let after = load_user(&mut tx, user_id).await?;
+    let action = if disabled {
+        "disable user"
+    } else {
+        "enable user"
+    };
+    record(
+        &mut tx,
+        actor,
+        action,
+        &after.name,
+        Some(describe(&before)),
+        Some(describe(&after)),
+    )
+    .await?;
+    tx.commit().await?;
+    Ok(after)
+}
+
+/// End every session of an account; returns how many ended.
+pub async fn sign_out_everywhere(
+    db: &SqlitePool,
+    user_id: i64,
+    actor: &str,
+) -> Result<u64, ServiceError> {
+    let mut tx = db.begin().await?;
+    let user = load_user(&mut tx, user_id).await?;
+    let ended = store::sessions::delete_for_user(&mut *tx, user_id).await?;
+    record(
+        &mut tx,
+        actor,
+        "sign out everywhere",
+        &user.name,
+        None,
+        Some(format!("{ended} session(s) ended")),
+    )
+    .await?;
+    tx.commit().await?;
+    Ok(ended)
+}
+
+/// Every account, by name.
+pub async fn list_users(db: &SqlitePool) -> Result<Vec<UserRow>, ServiceError> {
+    Ok(store::users::list(db).await?)
+}
+
+/// When this name or this client may try again, if either is throttled now.
+async fn throttled_until(
+    db: &SqlitePool,
+    name: &str,
+    client: &str,
+    now: i64,
+) -> Result<Option<i64>, sqlx::Error> {
+    let since = now - auth::THROTTLE_WINDOW_SECS;
+    let n = auth::THROTTLE_MAX_FAILURES;
+    // Sliding window: locked until the n-th latest failure leaves the window.
+    let by_name = store::sessions::nth_failure_for_name(db, name, since, n).await?;
+    let by_client = store::sessions::nth_failure_for_client(db, client, since, n).await?;
+    Ok(by_name
+        .max(by_client)
+        .map(|at| at + auth::THROTTLE_WINDOW_SECS)
+        .filter(|&until| until > now))
+}
+
+/// Sign in: refuse while throttled, check the password, and open a session.
+/// `client` is the address the request came from.
+pub async fn log_in(
+    db: &SqlitePool,
+    name: &str,
+    password: &str,
+    client: &str,
+    now: i64,
+) -> Result<NewLogin, LoginError> {
+    let name: String = name.trim().chars().take(MAX_NAME_CHARS * 2).collect();
+    store::sessions::prune_failures(db, now - auth::THROTTLE_WINDOW_SECS).await?;
+    if let Some(retry_at) = throttled_until(db, &name, client, now).await? {
+        tracing::warn!(user = %name, client, "sign-in refused: throttled");
+        return Err(LoginError::Throttled { retry_at, now });
+    }
+    let account = store::users::credentials(db, &name).await?;
+    let stored = account.as_ref().map(|a| a.password_hash.clone());
+    let typed = password
+        .chars()
+        .take(password::MAX_LEN + 1)
+        .collect::<String>();
+    let matches = tokio::task::spawn_blocking(move || match stored {
+        Some(hash) => password::verify(&typed, &hash),
+        None => {
+            password::verify_nothing(&typed);
+            false
+        }
+    })
+    .await
+    .unwrap_or(false);
+    let account = match account {
+        Some(a) if matches => a,
+        _ => {
+            store::sessions::record_failure(db, &name, client, now).await?;
+            tracing::warn!(user = %name, client, "sign-in failed");
+            return Err(LoginError::WrongCredentials);
+        }
+    };
+    if account.disabled {
+        tracing::warn!(user = %account.name, client, "sign-in refused: account disabled");
+        return Err(LoginError::Disabled);
+    }
+    store::sessions::clear_failures(db, &name).await?;
+    store::sessions::delete_expired(db, now, now - auth::SESSION_IDLE_SECS).await?;
+    let session_token = token::new_token();
+    let csrf_token = token::new_token();
+    let session_digest = token::digest(&session_token);
+    store::sessions::insert(
+        db,
+        NewSession {
+            token_hash: &session_digest,
+            user_id: account.id,
+            csrf_token: &csrf_token,
+            now,
+            expires_at: now + auth::SESSION_ABSOLUTE_SECS,
+        },
+    )
+    .await?;
+    tracing::info!(user = %account.name, client, "signed in");
+    Ok(NewLogin {
+        session_token,
+        user: SignedIn {
+            user_id: account.id,
+            name: account.name,
+            role: account.role,
+            csrf_token,
+            session_digest,
+        },
+    })
+}
+
+/// The account a session cookie belongs to, if the session is still open at `now`.
+/// An expired session (idle or absolute) or one of a disabled account is removed.
+pub async fn resolve_session(
+    db: &SqlitePool,
+    session_token: &str,
+    now: i64,
+) -> Result<Option<SignedIn>, sqlx::Error> {
+    if session_token.len() != 64 || !session_token.bytes().all(|b| b.is_ascii_hexdigit()) {
+        return Ok(None);
+    }
+    let digest = token::digest(session_token);
+    let Some(row) = store::sessions::find(db, &digest).await? else {
+        return Ok(None);
+    };
+    if row.disabled || now >= row.expires_at || now - row.last_seen_at > auth::SESSION_IDLE_SECS {
+        store::sessions::delete(db, &digest).await?;
+        return Ok(None);
+    }
+    if now - row.last_seen_at >= auth::SESSION_TOUCH_SECS {
+        store::sessions::touch(db, &digest, now).await?;
+    }
+    Ok(Some(SignedIn {
+        user_id: row.user_id,
+        name: row.name,
+        role: row.role,
+        csrf_token: row.csrf_token,
+        session_digest: digest,
+    }))
+}
+
+/// End one session.
+pub async fn log_out(db: &SqlitePool, session_digest: &str) -> Result<(), sqlx::Error> {
+    store::sessions::delete(db, session_digest).await
+}

@@ -1,0 +1,241 @@
+//! Picks, their states and the discussion thread of a well; each saved change is
+//! pushed to the study's live stream.
+
+use crate::services::accounts::SignedIn;
+use super::live::{self, LiveEvent};
+use super::wells::{PageMessage, render_well_page};
+use super::{ApiResult, AppError, AppState, PageResult};
+use crate::services::ServiceError;
+use crate::services::review::{self, PickEdit};
+use crate::store;
+use crate::store::wells::WellRow;
+use axum::extract::{Path, State};
+use axum::http::StatusCode;
+use axum::response::{IntoResponse, Redirect, Response};
+use axum::routing::{get, post, put};
+use axum::{Form, Json, Router};
+use serde::{Deserialize, Serialize};
+
+pub fn routes() -> Router<AppState> {
+    Router::new()
+        .route("/studies/{id}/wells/{well_id}/picks", post(pick_form))
+        .route("/studies/{id}/wells/{well_id}/comments", post(comment_form))
+        .route("/api/studies/{id}/wells/{well_id}/review", get(review_json))
+        .route("/api/studies/{id}/wells/{well_id}/picks/{event}", put(pick_json))
+        .route("/api/studies/{id}/wells/{well_id}/picks/{event}/clear", post(clear_json))
+        .route("/api/studies/{id}/wells/{well_id}/comments", post(comment_json))
+        .route("/api/studies/{id}/events", get(live::study_events))
+}
+
+async fn load_well(state: &AppState, study_id: i64, well_id: i64) -> Result<WellRow, AppError> {
+    super::studies::load_study(state, study_id).await?;
+    store::wells::get(&state.db, study_id, well_id)
+        .await?
+        .ok_or_else(|| AppError::NotFound(format!("well {well_id} in study {study_id}")))
+}
+
+fn announce_pick(state: &AppState, well: &WellRow, saved_kind: &'static str, summary: String, by: &str) {
+    state.events.publish(
+        well.study_id,
+        LiveEvent { kind: saved_kind, well_id: well.id, well: well.name.clone(), by: by.to_string(), summary },
+    );
+}
+
+/// The pick form of the well page: `action` is `save` (default) or `clear`.
+#[derive(Debug, Deserialize)]
+struct PickForm {
+    event: i64,
+    #[serde(default)]
+    rift_onset_ma: Option<f64>,
+    #[serde(default)]
+    rift_end_ma: Option<f64>,
+    #[serde(default = "default_model")]
+    model: String,
+    #[serde(default = "default_state")]
+    state: String,
+    version: i64,
+    #[serde(default)]
+    action: Option<String>,
+}
+
+fn default_model() -> String {
+    "uniform".into()
+}
+fn default_state() -> String {
+    "draft".into()
+}
+
+async fn pick_form(
+    State(state): State<AppState>,
+    user: SignedIn,
+    Path((id, well_id)): Path<(i64, i64)>,
+    Form(form): Form<PickForm>,
+) -> PageResult<Response> {
+    let well = load_well(&state, id, well_id).await?;
+    let result = if form.action.as_deref() == Some("clear") {
+        review::delete_pick(&state.db, &well, form.event, form.version, &user.name)
+            .await
+            .map(|p| ("delete pick", format!("{} cleared the pick of rift event {} on {}", user.name, p.event, well.name)))
+    } else {
+        let edit = PickEdit {
+            event: form.event,
+            rift_onset_ma: form.rift_onset_ma.unwrap_or(f64::NAN),
+            rift_end_ma: form.rift_end_ma.unwrap_or(f64::NAN),
+            model: form.model,
+            state: form.state,
+            version: form.version,
+        };
+        review::save_pick(&state.db, &well, &edit, &user.name).await.map(|s| {
+            (
+                "pick",
+                format!(
+                    "{} saved rift event {} on {}: {} → {} Ma, {}",
+                    user.name, s.pick.event, well.name, s.pick.rift_onset_ma, s.pick.rift_end_ma, s.pick.state
+                ),
+            )
+        })
+    };
+    match result {
+        Ok((kind, summary)) => {
+            announce_pick(&state, &well, kind, summary, &user.name);
+            Ok(Redirect::to(&format!("/studies/{id}/wells/{well_id}#review")).into_response())
+        }
+        Err(ServiceError::Stale { message, .. }) => {
+            render_well_page(&state, id, well_id, None, Some(PageMessage::problem(message)), StatusCode::CONFLICT).await
+        }
+        Err(ServiceError::Invalid(message)) => {
+            render_well_page(&state, id, well_id, None, Some(PageMessage::problem(message)), StatusCode::UNPROCESSABLE_ENTITY).await
+        }
+        Err(e) => Err(AppError::from(e).into()),
+    }
+}
+
+#[derive(Debug, Deserialize)]
+struct CommentForm {
+    body: String,
+    #[serde(default)]
+    pick_event: Option<String>,
+}
+
+fn parse_event(raw: Option<&str>) -> Result<Option<i64>, AppError> {
+    match raw.map(str::trim) {
+        None | Some("") => Ok(None),
+        Some(v) => v.parse().map(Some).map_err(|_| AppError::Rejected(format!("'{v}' is not a rift event number."))),
+    }
+}
+
+async fn comment_form(
+    State(state): State<AppState>,
+    user: SignedIn,
+    Path((id, well_id)): Path<(i64, i64)>,
+    Form(form): Form<CommentForm>,
+) -> PageResult<Response> {
+    let well = load_well(&state, id, well_id).await?;
+    let event = parse_event(form.pick_event.as_deref())?;
+    match review::add_comment(&state.db, &well, event, &form.body, &user.name).await {
+        Ok(c) => {
+            state.events.publish(
+                id,
+                LiveEvent { kind: "comment", well_id, well: well.name.clone(), by: user.name.clone(), summary: format!("{} commented on {}: {}", c.author, well.name, shorten(&c.body)) },
+            );
+            Ok(Redirect::to(&format!("/studies/{id}/wells/{well_id}#discussion")).into_response())
+        }
+        Err(ServiceError::Invalid(message)) => {
+            render_well_page(&state, id, well_id, None, Some(PageMessage::problem(message)), StatusCode::UNPROCESSABLE_ENTITY).await
+        }
+        Err(e) => Err(AppError::from(e).into()),
+    }
+}
+
+fn shorten(text: &str) -> String {
+    const MAX: usize = 80;
+    if text.chars().count() <= MAX { text.to_string() } else { format!("{}…", text.chars().take(MAX).collect::<String>()) }
+}
+
+/// The review part of a well: picks and comments.
+#[derive(Debug, Serialize)]
+pub struct ReviewView {
+    pub picks: Vec<store::picks::PickRow>,
+    pub comments: Vec<store::comments::CommentRow>,
+}
+
+async fn review_json(State(state): State<AppState>, Path((id, well_id)): Path<(i64, i64)>) -> ApiResult<Json<ReviewView>> {
+    let well = load_well(&state, id, well_id).await?;
+    Ok(Json(ReviewView {
+        picks: store::picks::for_well(&state.db, well.id).await?,
+        comments: store::comments::for_well(&state.db, well.id).await?,
+    }))
+}
+
+/// `PUT /api/studies/{id}/wells/{well_id}/picks/{event}` with
+/// `{rift_onset_ma, rift_end_ma, model, state, version}`; 409 with the stored pick
+/// when `version` is not the stored one.
+#[derive(Debug, Deserialize)]
+struct PickBody {
+    rift_onset_ma: f64,
+    rift_end_ma: f64,
+    #[serde(default = "default_model")]
+    model: String,
+    #[serde(default = "default_state")]
+    state: String,
+    version: i64,
+}
+
+async fn pick_json(
+    State(state): State<AppState>,
+    user: SignedIn,
+    Path((id, well_id, event)): Path<(i64, i64, i64)>,
+    Json(body): Json<PickBody>,
+) -> ApiResult<Json<store::picks::PickRow>> {
+    let well = load_well(&state, id, well_id).await?;
+    let edit = PickEdit { event, rift_onset_ma: body.rift_onset_ma, rift_end_ma: body.rift_end_ma, model: body.model, state: body.state, version: body.version };
+    let saved = review::save_pick(&state.db, &well, &edit, &user.name).await?;
+    let p = &saved.pick;
+    announce_pick(
+        &state,
+        &well,
+        "pick",
+        format!("{} saved rift event {} on {}: {} → {} Ma, {}", user.name, p.event, well.name, p.rift_onset_ma, p.rift_end_ma, p.state),
+        &user.name,
+    );
+    Ok(Json(saved.pick))
+}
+
+#[derive(Debug, Deserialize)]
+struct ClearBody {
+    version: i64,
+}
+
+async fn clear_json(
+    State(state): State<AppState>,
+    user: SignedIn,
+    Path((id, well_id, event)): Path<(i64, i64, i64)>,
+    Json(body): Json<ClearBody>,
+) -> ApiResult<Json<store::picks::PickRow>> {
+    let well = load_well(&state, id, well_id).await?;
+    let removed = review::delete_pick(&state.db, &well, event, body.version, &user.name).await?;
+    announce_pick(&state, &well, "delete pick", format!("{} cleared the pick of rift event {event} on {}", user.name, well.name), &user.name);
+    Ok(Json(removed))
+}
+
+#[derive(Debug, Deserialize)]
+struct CommentBody {
+    body: String,
+    #[serde(default)]
+    pick_event: Option<i64>,
+}
+
+async fn comment_json(
+    State(state): State<AppState>,
+    user: SignedIn,
+    Path((id, well_id)): Path<(i64, i64)>,
+    Json(body): Json<CommentBody>,
+) -> ApiResult<(StatusCode, Json<store::comments::CommentRow>)> {
+    let well = load_well(&state, id, well_id).await?;
+    let c = review::add_comment(&state.db, &well, body.pick_event, &body.body, &user.name).await?;
+    state.events.publish(
+        id,
+        LiveEvent { kind: "comment", well_id, well: well.name.clone(), by: user.name.clone(), summary: format!("{} commented on {}: {}", c.author, well.name, shorten(&c.body)) },
+    );
+    Ok((StatusCode::CREATED, Json(c)))
+}
