@@ -27,6 +27,18 @@ pub enum Command {
     Analyze(crate::batch::AnalyzeArgs),
     /// Manage the accounts of a database.
     User(UserArgs),
+    /// Rebuild the demo study's CSV files from its basin description (seeded, repeatable).
+    BuildDemo(BuildDemoArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct BuildDemoArgs {
+    /// The basin description.
+    #[arg(long, default_value = "demo-db/basin.json")]
+    pub spec: PathBuf,
+    /// Where tops.csv, wells.csv and sea_level.csv are written.
+    #[arg(long, default_value = "demo-db")]
+    pub out: PathBuf,
 }
 
 #[derive(Debug, Args)]
@@ -89,6 +101,7 @@ pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Some(Command::Analyze(args)) => crate::batch::run(&args),
+        Some(Command::BuildDemo(a)) => crate::demo_build::run(&a.spec, &a.out),
         Some(Command::Serve(args)) => serve_blocking(args),
         Some(Command::User(UserArgs {
             action: UserAction::Add(args),

@@ -18,6 +18,8 @@ pub mod auth;
 pub mod services;
 /// The demo study, built from the files in `demo-db/`.
 pub mod demo;
+/// Builds the demo study's CSV files from the invented basin in `demo-db/basin.json`.
+pub mod demo_build;
 /// Server-side SVG charts (subsidence, burial, heat flow, well map, rift timing): data in, SVG out.
 pub mod charts;
 /// The HTTP layer: routers per feature, pages and their JSON twins.

@@ -6,7 +6,9 @@ use super::{ApiResult, AppError, AppState, PageResult};
 use crate::analysis::{self, StudyInputs};
 use crate::charts::{self, ChartSize, MapWell, RiftTimingData, RiftTimingWell, WellMapData};
 use crate::services::results::{self, WellResult};
+use crate::services::review;
 use crate::store;
+use crate::store::picks::PickRow;
 use std::collections::HashMap;
 use crate::store::studies::{StudyRow, StudySummary};
 use crate::store::uploads::UploadRow;
@@ -135,6 +137,8 @@ pub struct OverviewRow {
     pub rms_misfit_m: Option<f64>,
     /// "proposed" or "team pick" when there is a fit.
     pub origin: Option<String>,
+    /// The team's pick state (of rift event 1, or "draft/agreed/questioned" per event), if any.
+    pub pick_state: Option<String>,
     /// Why there is no fit, or why the well could not be analysed.
     pub note: Option<String>,
 }
@@ -156,7 +160,7 @@ pub struct StudyView {
     pub charts: OverviewCharts,
 }
 
-fn overview_row(summary: &WellSummary, r: &WellResult) -> OverviewRow {
+fn overview_row(summary: &WellSummary, r: &WellResult, picks: &[&PickRow]) -> OverviewRow {
     let out = r.outcome.as_ref().ok().map(|a| analysis::well_out(a));
     let st = out.as_ref().and_then(|o| o.stretching.as_ref());
     OverviewRow {
@@ -175,6 +179,11 @@ fn overview_row(summary: &WellSummary, r: &WellResult) -> OverviewRow {
         delta: st.and_then(|s| s.two_layer.as_ref()).map(|t| t.delta),
         rms_misfit_m: st.map(|s| s.rms_misfit_m),
         origin: st.map(|s| s.origin.to_string()),
+        pick_state: match picks {
+            [] => None,
+            [one] => Some(one.state.clone()),
+            many => Some(many.iter().map(|p| format!("event {}: {}", p.event, p.state)).collect::<Vec<_>>().join(", ")),
+        },
         note: match &r.outcome {
             Err(e) => Some(format!("not analysed: {e}")),
             Ok(_) => out.and_then(|o| o.fit_note),
@@ -184,10 +193,17 @@ fn overview_row(summary: &WellSummary, r: &WellResult) -> OverviewRow {
 
 /// The analysis of every well, in the order of the well summaries (by name).
 async fn overview_rows(state: &AppState, id: i64, summaries: &[WellSummary]) -> ApiResult<(StudyInputs, Vec<OverviewRow>)> {
-    let timings = HashMap::new();
+    let picks = store::picks::for_study(&state.db, id).await?;
+    let timings = review::study_timings(&state.db, id).await?;
     let (inputs, results) = results::study_results(&state.db, &state.cache, id, &timings).await?;
     let by_id: HashMap<i64, &WellResult> = results.iter().map(|r| (r.well.id, r)).collect();
-    let rows = summaries.iter().filter_map(|s| by_id.get(&s.id).map(|r| overview_row(s, r))).collect();
+    let rows = summaries
+        .iter()
+        .filter_map(|s| {
+            let mine: Vec<&PickRow> = picks.iter().filter(|p| p.well_id == s.id).collect();
+            by_id.get(&s.id).map(|r| overview_row(s, r, &mine))
+        })
+        .collect();
     Ok((inputs, rows))
 }
 
@@ -268,11 +284,12 @@ async fn study_download(State(state): State<AppState>, Path((id, file)): Path<(i
                         num(r.delta, 4),
                         num(r.rms_misfit_m, 2),
                         r.origin.clone().unwrap_or_default(),
+                        r.pick_state.clone().unwrap_or_default(),
                         r.note.clone().unwrap_or_default(),
                     ]
                 })
                 .collect();
-            let header = ["well", "x_m", "y_m", "surfaces", "rift_onset_ma", "rift_end_ma", "beta", "beta_min", "beta_max", "delta", "rms_misfit_m", "timing", "note"];
+            let header = ["well", "x_m", "y_m", "surfaces", "rift_onset_ma", "rift_end_ma", "beta", "beta_min", "beta_max", "delta", "rms_misfit_m", "timing", "pick_state", "note"];
             exports::download("text/csv; charset=utf-8", &format!("{base}-wells.csv"), exports::csv_text(&meta, &format!("Wells of study {base}"), &header, &table))
         }
         "map.svg" => exports::download("image/svg+xml", &format!("{base}-map.svg"), meta.stamp_svg(&charts::well_map_chart(&map_data(&base, &rows), ChartSize::default()))),
@@ -281,7 +298,8 @@ async fn study_download(State(state): State<AppState>, Path((id, file)): Path<(i
             exports::download("image/svg+xml", &format!("{base}-rift-timing.svg"), meta.stamp_svg(&charts::rift_timing_chart(&rift_timing_data(&base, &rows), size)))
         }
         "analysis.json" => {
-            let (inputs, results) = results::study_results(&state.db, &state.cache, id, &HashMap::new()).await?;
+            let timings = review::study_timings(&state.db, id).await?;
+            let (inputs, results) = results::study_results(&state.db, &state.cache, id, &timings).await?;
             let wells: Vec<_> = results
                 .iter()
                 .map(|r| match &r.outcome {
