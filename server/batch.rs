@@ -49,7 +49,10 @@ pub struct BatchError(pub String);
 
 impl From<Vec<InputProblem>> for BatchError {
     fn from(problems: Vec<InputProblem>) -> Self {
-        let mut text = format!("the input has {} problem(s); nothing was analysed:", problems.len());
+        let mut text = format!(
+            "the input has {} problem(s); nothing was analysed:",
+            problems.len()
+        );
         for p in problems {
             text.push_str("\n  ");
             text.push_str(&p.to_string());
@@ -69,7 +72,8 @@ pub fn run(args: &AnalyzeArgs) -> ExitCode {
 }
 
 fn read(path: &Path) -> Result<Vec<u8>, BatchError> {
-    let meta = std::fs::metadata(path).map_err(|e| BatchError(format!("cannot read {}: {e}", path.display())))?;
+    let meta = std::fs::metadata(path)
+        .map_err(|e| BatchError(format!("cannot read {}: {e}", path.display())))?;
     if meta.len() > input::MAX_FILE_BYTES as u64 {
         return Err(BatchError(format!(
             "{} is {} MiB, over the limit of {} MiB; split it into several files",
@@ -82,7 +86,9 @@ fn read(path: &Path) -> Result<Vec<u8>, BatchError> {
 }
 
 fn file_name(path: &Path) -> String {
-    path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| path.display().to_string())
+    path.file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| path.display().to_string())
 }
 
 /// The `--params` file: model parameters (any subset) and lithologies.
@@ -112,20 +118,42 @@ pub fn load_parameters(path: Option<&Path>) -> Result<(ModelParameters, Catalogu
         Some(p) => {
             let bytes = read(p)?;
             serde_json::from_slice(&bytes).map_err(|e| {
-                BatchError(format!("{} line {}, column {}: {e}", file_name(p), e.line(), e.column()))
+                BatchError(format!(
+                    "{} line {}, column {}: {e}",
+                    file_name(p),
+                    e.line(),
+                    e.column()
+                ))
             })?
         }
     };
     if let Err(problems) = file.model.validate() {
         let list: Vec<String> = problems.iter().map(|e| e.to_string()).collect();
-        return Err(BatchError(format!("parameters out of range: {}", list.join("; "))));
+        let source = path
+            .map(file_name)
+            .unwrap_or_else(|| "the default parameters".into());
+        return Err(BatchError(format!(
+            "{source}: parameters out of range: {}",
+            list.join("; ")
+        )));
     }
     let mut lithologies: Vec<Lithology> = Catalogue::published_defaults().lithologies().to_vec();
     for entry in file.lithologies {
-        let l = Lithology::new(&entry.name, entry.surface_porosity, entry.compaction_per_km, entry.grain_density_kg_m3)
-            .map_err(|e| BatchError(format!("lithology '{}': {e}", entry.name)))?
-            .with_source("given in the parameters file");
-        match lithologies.iter_mut().find(|x| x.name.eq_ignore_ascii_case(&l.name)) {
+        let l = Lithology::new(
+            &entry.name,
+            entry.surface_porosity,
+            entry.compaction_per_km,
+            entry.grain_density_kg_m3,
+        )
+        .map_err(|e| {
+            let source = path.map(file_name).unwrap_or_default();
+            BatchError(format!("{source}: lithology '{}': {e}", entry.name))
+        })?
+        .with_source("given in the parameters file");
+        match lithologies
+            .iter_mut()
+            .find(|x| x.name.eq_ignore_ascii_case(&l.name))
+        {
             Some(slot) => *slot = l,
             None => lithologies.push(l),
         }
@@ -140,12 +168,24 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
     // Read and validate every file first, reporting all problems together.
     let mut problems = Vec::new();
     let tops_bytes = read(&args.tops)?;
-    let names: Vec<String> = catalogue.lithologies().iter().map(|l| l.name.clone()).collect();
+    let names: Vec<String> = catalogue
+        .lithologies()
+        .iter()
+        .map(|l| l.name.clone())
+        .collect();
     let spelling = |n: &str| names.iter().find(|c| c.eq_ignore_ascii_case(n)).cloned();
-    let options = TopsOptions { file_name: Some(file_name(&args.tops)), ..Default::default() };
-    let tops = input::parse_tops_with_catalogue(&tops_bytes, &options, &spelling).map_err(|p| problems.extend(p)).ok();
+    let options = TopsOptions {
+        file_name: Some(file_name(&args.tops)),
+        ..Default::default()
+    };
+    let tops = input::parse_tops_with_catalogue(&tops_bytes, &options, &spelling)
+        .map_err(|p| problems.extend(p))
+        .ok();
     if let Some(path) = &args.wells {
-        let opts = input::WellsOptions { file_name: Some(file_name(path)), ..Default::default() };
+        let opts = input::WellsOptions {
+            file_name: Some(file_name(path)),
+            ..Default::default()
+        };
         if let Err(p) = input::parse_wells(&read(path)?, &opts) {
             problems.extend(p);
         }
@@ -176,11 +216,21 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
         Some(t) if problems.is_empty() => t,
         _ => return Err(problems.into()),
     };
-    if let Some(unknown) = picks.iter().find(|p| !tops.wells.iter().any(|w| w.name == p.well)) {
-        return Err(BatchError(format!("picks: well '{}' is not in the tops file", unknown.well)));
+    if let Some(unknown) = picks
+        .iter()
+        .find(|p| !tops.wells.iter().any(|w| w.name == p.well))
+    {
+        return Err(BatchError(format!(
+            "picks: well '{}' is not in the tops file",
+            unknown.well
+        )));
     }
 
-    let inputs = StudyInputs { params, catalogue, sea_level };
+    let inputs = StudyInputs {
+        params,
+        catalogue,
+        sea_level,
+    };
     let bar = progress_bar(tops.wells.len());
     let tick = || {
         if let Some(b) = &bar {
@@ -200,10 +250,13 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
     let report = analysis::report(&tops.wells, &results, &inputs);
     let output = render(&report, args.format)?;
     match &args.out {
-        Some(path) => std::fs::write(path, output).map_err(|e| BatchError(format!("cannot write {}: {e}", path.display()))),
+        Some(path) => std::fs::write(path, output)
+            .map_err(|e| BatchError(format!("cannot write {}: {e}", path.display()))),
         None => {
             let mut out = std::io::stdout().lock();
-            out.write_all(&output).and_then(|_| out.flush()).map_err(|e| BatchError(format!("cannot write the output: {e}")))
+            out.write_all(&output)
+                .and_then(|_| out.flush())
+                .map_err(|e| BatchError(format!("cannot write the output: {e}")))
         }
     }
 }
@@ -215,7 +268,9 @@ fn progress_bar(wells: usize) -> Option<indicatif::ProgressBar> {
         return None;
     }
     let bar = indicatif::ProgressBar::new(wells as u64);
-    if let Ok(style) = indicatif::ProgressStyle::with_template("{bar:40} {pos}/{len} wells analysed ({eta} left)") {
+    if let Ok(style) =
+        indicatif::ProgressStyle::with_template("{bar:40} {pos}/{len} wells analysed ({eta} left)")
+    {
         bar.set_style(style);
     }
     Some(bar)
@@ -225,7 +280,8 @@ fn progress_bar(wells: usize) -> Option<indicatif::ProgressBar> {
 pub fn render(report: &Report, format: OutputFormat) -> Result<Vec<u8>, BatchError> {
     match format {
         OutputFormat::Json => {
-            let mut v = serde_json::to_vec_pretty(report).map_err(|e| BatchError(format!("cannot write JSON: {e}")))?;
+            let mut v = serde_json::to_vec_pretty(report)
+                .map_err(|e| BatchError(format!("cannot write JSON: {e}")))?;
             v.push(b'\n');
             Ok(v)
         }
@@ -238,7 +294,8 @@ pub fn render(report: &Report, format: OutputFormat) -> Result<Vec<u8>, BatchErr
                     w.write_record(&row).map_err(fail)?;
                 }
             }
-            w.into_inner().map_err(|e| BatchError(format!("cannot write CSV: {e}")))
+            w.into_inner()
+                .map_err(|e| BatchError(format!("cannot write CSV: {e}")))
         }
     }
 }

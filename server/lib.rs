@@ -2,29 +2,29 @@
 //!
 //! Dependencies point one way: `web` → (`services`, `store`, `analysis`) → `science`.
 
-/// The pure science core: decompaction, backstripping, stretching models, heat flow.
-pub mod science;
-/// Reading and checking the input CSV files (tops, wells, sea level, picks).
-pub mod input;
 /// Whole-well and whole-study analysis on top of the science core, and the JSON contract.
 pub mod analysis;
-/// The `sagline analyze` batch command.
-pub mod batch;
-/// The store: every SQL statement, as functions taking an executor.
-pub mod store;
 /// Accounts and access without I/O: roles, the access rules, password hashing, session tokens.
 pub mod auth;
-/// Operations that change data: one transaction each, with their activity-log row.
-pub mod services;
+/// The `sagline analyze` batch command.
+pub mod batch;
+/// Server-side SVG charts (subsidence, burial, heat flow, well map, rift timing): data in, SVG out.
+pub mod charts;
+/// The command line.
+pub mod cli;
 /// The demo study, built from the files in `demo-db/`.
 pub mod demo;
 /// Builds the demo study's CSV files from the invented basin in `demo-db/basin.json`.
 pub mod demo_build;
-/// Server-side SVG charts (subsidence, burial, heat flow, well map, rift timing): data in, SVG out.
-pub mod charts;
-/// The HTTP layer: routers per feature, pages and their JSON twins.
-pub mod web;
+/// Reading and checking the input CSV files (tops, wells, sea level, picks).
+pub mod input;
+/// The pure science core: decompaction, backstripping, stretching models, heat flow.
+pub mod science;
 /// Starting and stopping the web server.
 pub mod server;
-/// The command line.
-pub mod cli;
+/// Operations that change data: one transaction each, with their activity-log row.
+pub mod services;
+/// The store: every SQL statement, as functions taking an executor.
+pub mod store;
+/// The HTTP layer: routers per feature, pages and their JSON twins.
+pub mod web;

@@ -52,6 +52,12 @@ pub async fn serve(
     state: web::AppState,
     shutdown: impl std::future::Future<Output = ()> + Send + 'static,
 ) -> std::io::Result<()> {
+    // Live streams never end on their own: close them when the shutdown begins.
+    let events = state.events.clone();
+    let shutdown = async move {
+        shutdown.await;
+        events.close();
+    };
     // The client address is what sign-in throttling counts failures by.
     axum::serve(
         listener,

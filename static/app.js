@@ -33,14 +33,45 @@ document.querySelectorAll("table.sortable").forEach((table) => {
   const study = title.dataset.study;
   const well = title.dataset.well;
   const feed = document.getElementById("live-feed");
+  // Changes can arrive close together and their fetches finish in any order: only the
+  // newest fetch may write, so an older page never overwrites a newer one.
+  let newest = 0;
   const refresh = async (selectors) => {
+    const ticket = ++newest;
     const res = await fetch(window.location.pathname + window.location.search, { credentials: "same-origin" });
-    if (!res.ok) return;
-    const doc = new DOMParser().parseFromString(await res.text(), "text/html");
+    if (!res.ok || ticket !== newest) return;
+    const html = await res.text();
+    if (ticket !== newest) return;
+    const doc = new DOMParser().parseFromString(html, "text/html");
     for (const sel of selectors) {
       const mine = document.querySelector(sel);
       const theirs = doc.querySelector(sel);
-      if (mine && theirs) mine.replaceWith(theirs);
+      if (!mine || !theirs) continue;
+      // Never throw away what someone is typing: a part holding an edited form keeps
+      // its forms and takes only the rest of the new content.
+      const editing = Array.from(mine.querySelectorAll("form")).filter((f) => f.dataset.dirty || f.contains(document.activeElement));
+      if (editing.length === 0) {
+        mine.replaceWith(theirs);
+        continue;
+      }
+      mine.querySelectorAll(".pick-editor").forEach((panel) => {
+        const twin = theirs.querySelector(`.pick-editor[data-event="${panel.dataset.event}"]`);
+        const form = panel.querySelector("form");
+        if (!twin) return;
+        if (form && editing.includes(form)) {
+          // Refresh the text above the form; tell the user the pick moved under them.
+          Array.from(panel.children).filter((c) => c !== form && c.tagName !== "H3").forEach((c) => c.remove());
+          Array.from(twin.children).filter((c) => c.tagName !== "FORM" && c.tagName !== "H3").reverse().forEach((c) => form.before(c));
+          if (!panel.querySelector(".moved-note")) {
+            const note = document.createElement("p");
+            note.className = "moved-note problems-box";
+            note.textContent = "Someone else changed this pick while you were editing; saving now will be refused with their change shown.";
+            form.before(note);
+          }
+        } else {
+          panel.replaceWith(twin);
+        }
+      });
     }
     wireChartClicks();
   };
@@ -61,6 +92,12 @@ document.querySelectorAll("table.sortable").forEach((table) => {
   });
   source.addEventListener("missed", () => window.location.reload());
 })();
+
+// Mark forms the user has typed into, so live refreshes leave them alone.
+document.addEventListener("input", (ev) => {
+  const form = ev.target.closest && ev.target.closest("form");
+  if (form) form.dataset.dirty = "1";
+});
 
 // Clicking the subsidence chart sets the rift onset (first click) and end (second
 // click) of rift event 1 to the nearest surface age, then tries the timing at once.

@@ -38,6 +38,7 @@ fn reads(study: i64, well: i64) -> Vec<String> {
         format!("/api/studies/{study}"),
         format!("/studies/{study}/wells/{well}"),
         format!("/api/studies/{study}/wells/{well}"),
+        format!("/api/studies/{study}/wells/{well}/review"),
         format!("/studies/{study}/upload"),
         format!("/api/studies/{study}/upload"),
         format!("/studies/{study}/upload/{NO_UPLOAD}"),
@@ -79,7 +80,7 @@ fn change(method: Method, path: String, body: Body, least: Role) -> Change {
     }
 }
 
-fn changes(study: i64) -> Vec<Change> {
+fn changes(study: i64, well: i64) -> Vec<Change> {
     use Body::{Empty, Form, Json};
     use Method as M;
     use Role::{Admin, Interpreter};
@@ -107,6 +108,37 @@ fn changes(study: i64) -> Vec<Change> {
             M::POST,
             format!("/api/studies/{study}/tops"),
             Empty,
+            Interpreter,
+        ),
+        // The review: picks (saving, agreeing and clearing) and comments.
+        change(
+            M::PUT,
+            format!("/api/studies/{study}/wells/{well}/picks/1"),
+            Json(json!({ "state": "agreed" })),
+            Interpreter,
+        ),
+        change(
+            M::POST,
+            format!("/studies/{study}/wells/{well}/picks"),
+            Form(&[("state", "agreed")]),
+            Interpreter,
+        ),
+        change(
+            M::POST,
+            format!("/api/studies/{study}/wells/{well}/picks/1/clear"),
+            Json(json!({})),
+            Interpreter,
+        ),
+        change(
+            M::POST,
+            format!("/api/studies/{study}/wells/{well}/comments"),
+            Json(json!({ "body": "  " })),
+            Interpreter,
+        ),
+        change(
+            M::POST,
+            format!("/studies/{study}/wells/{well}/comments"),
+            Form(&[("body", "")]),
             Interpreter,
         ),
         change(
@@ -209,6 +241,11 @@ fn changes(study: i64) -> Vec<Change> {
     ]
 }
 
+/// The study's live change stream (server-sent events).
+fn live_stream(study: i64) -> String {
+    format!("/api/studies/{study}/events")
+}
+
 /// Sign-out routes: every signed-in role may use them (tested on their own, as they end sessions).
 const SIGN_OUT: [&str; 2] = ["/logout", "/logout-everywhere"];
 
@@ -277,7 +314,14 @@ async fn every_route_refuses_an_anonymous_request() {
         let answer = nobody.get(&path).await;
         assert_refused_anonymous(&answer, &Method::GET, &path);
     }
-    let mut all_changes = changes(study);
+    // The live stream answers with headers at once and then stays open: only its status is read.
+    let stream = nobody
+        .request(Method::GET, &live_stream(study))
+        .send()
+        .await
+        .expect("request the live stream");
+    assert_eq!(stream.status(), StatusCode::UNAUTHORIZED);
+    let mut all_changes = changes(study, well);
     for path in SIGN_OUT {
         all_changes.push(change(
             Method::POST,
@@ -393,7 +437,15 @@ async fn each_role_may_do_its_share_and_is_refused_the_rest_with_a_clear_403() {
                 assert_eq!(answer.status, StatusCode::FORBIDDEN, "{role} GET {path}");
             }
         }
-        for c in changes(study) {
+        // Every signed-in role may listen to the live stream.
+        let stream = agent
+            .request(Method::GET, &live_stream(study))
+            .send()
+            .await
+            .expect("request the live stream");
+        assert_eq!(stream.status(), StatusCode::OK, "{role} live stream");
+        drop(stream);
+        for c in changes(study, well) {
             // The one table of rules agrees with the brief's matrix.
             assert_eq!(
                 auth::required_access(c.method.as_str(), &c.path).access,

@@ -462,7 +462,11 @@ async fn a_lithology_edit_is_saved_and_recorded_and_a_bad_one_is_refused() {
         .iter()
         .find(|e| e["action"] == "edit lithology")
         .expect("edit lithology recorded");
-    assert_eq!(entry["actor"], common::ADMIN_NAME, "the signed-in user made the change");
+    assert_eq!(
+        entry["actor"],
+        common::ADMIN_NAME,
+        "the signed-in user made the change"
+    );
     let was = entry["before_state"].as_str().unwrap();
     let now = entry["after_state"].as_str().unwrap();
     assert!(

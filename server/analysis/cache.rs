@@ -20,7 +20,11 @@ pub struct ContentKey(u64);
 
 /// Hash the inputs of one well's analysis. Floats are hashed by their bits, so any
 /// change of value (even in the last digit) makes a new key.
-pub fn content_key(well: &WellColumn, inputs: &StudyInputs, timing: Option<&[(f64, f64)]>) -> ContentKey {
+pub fn content_key(
+    well: &WellColumn,
+    inputs: &StudyInputs,
+    timing: Option<&[(f64, f64)]>,
+) -> ContentKey {
     let mut h = DefaultHasher::new();
     let bits = |h: &mut DefaultHasher, x: f64| x.to_bits().hash(h);
     well.name.hash(&mut h);
@@ -111,8 +115,18 @@ impl AnalysisCache {
 
     /// The cached analysis for `key`, counting a hit or a miss.
     pub fn get(&self, key: ContentKey) -> Option<Arc<WellAnalysis>> {
-        let found = self.inner.lock().expect("cache lock").map.get(&key).cloned();
-        let counter = if found.is_some() { &self.hits } else { &self.misses };
+        let found = self
+            .inner
+            .lock()
+            .expect("cache lock")
+            .map
+            .get(&key)
+            .cloned();
+        let counter = if found.is_some() {
+            &self.hits
+        } else {
+            &self.misses
+        };
         counter.fetch_add(1, Ordering::Relaxed);
         found
     }

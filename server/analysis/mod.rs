@@ -14,8 +14,8 @@ use crate::science::phases::{self, PhaseProposal};
 use crate::science::uncertainty::{self, MonteCarloSettings, StretchingUncertainty};
 use crate::science::{ModelParameters, ScienceError, SeaLevelCurve, WellColumn};
 use contract::{
-    HistoryOut, LithologyOut, ParametersOut, PhaseOut, RangeOut, Report, RiftEventOut, StretchingOut, TwoLayerOut,
-    WellOut,
+    HistoryOut, LithologyOut, ParametersOut, PhaseOut, RangeOut, Report, RiftEventOut,
+    StretchingOut, TwoLayerOut, WellOut,
 };
 use rayon::prelude::*;
 use std::collections::BTreeMap;
@@ -33,7 +33,10 @@ pub const GRID_STEP_MYR: f64 = 1.0;
 
 /// Seed and size of the Monte-Carlo draw over the palaeo-water-depth ranges. A fixed
 /// seed makes every run of the same inputs give the same ranges.
-pub const MONTE_CARLO: MonteCarloSettings = MonteCarloSettings { draws: 200, seed: 20_261_201 };
+pub const MONTE_CARLO: MonteCarloSettings = MonteCarloSettings {
+    draws: 200,
+    seed: 20_261_201,
+};
 
 /// The team's rift timing for a well: one or two (onset, end) pairs in Ma, oldest first.
 pub type RiftTiming = Vec<(f64, f64)>;
@@ -70,12 +73,19 @@ pub fn observations(history: &WellHistory) -> Vec<SubsidenceObservation> {
     history
         .steps
         .iter()
-        .map(|s| SubsidenceObservation { age_ma: s.age_ma, tectonic_subsidence: s.tectonic_subsidence })
+        .map(|s| SubsidenceObservation {
+            age_ma: s.age_ma,
+            tectonic_subsidence: s.tectonic_subsidence,
+        })
         .collect()
 }
 
 /// Fit the stretching models to a backstripped history.
-pub fn interpret(history: &WellHistory, params: &ModelParameters, timing: Option<&[(f64, f64)]>) -> Result<Interpretation, ScienceError> {
+pub fn interpret(
+    history: &WellHistory,
+    params: &ModelParameters,
+    timing: Option<&[(f64, f64)]>,
+) -> Result<Interpretation, ScienceError> {
     let lithosphere = Lithosphere::water_loaded(params)?;
     let obs = observations(history);
     let proposal = match timing {
@@ -83,7 +93,13 @@ pub fn interpret(history: &WellHistory, params: &ModelParameters, timing: Option
         _ => phases::propose_phases(&lithosphere, &obs)?,
     };
     let uncertainty = match &proposal.uniform {
-        Some(fit) => Some(uncertainty::stretching_uncertainty(&lithosphere, &obs, fit, proposal.two_layer.as_ref(), MONTE_CARLO)?),
+        Some(fit) => Some(uncertainty::stretching_uncertainty(
+            &lithosphere,
+            &obs,
+            fit,
+            proposal.two_layer.as_ref(),
+            MONTE_CARLO,
+        )?),
         None => None,
     };
     let ages: Vec<f64> = obs.iter().map(|o| o.age_ma).collect();
@@ -91,16 +107,33 @@ pub fn interpret(history: &WellHistory, params: &ModelParameters, timing: Option
     let youngest = ages[ages.len() - 1];
     let grid = heat_flow::regular_ages(oldest, youngest, GRID_STEP_MYR)?;
     let equilibrium = lithosphere.equilibrium_heat_flow_mw_m2();
-    let flat = |ages: &[f64]| ages.iter().map(|&age_ma| HeatFlowPoint { age_ma, value: equilibrium }).collect::<Vec<_>>();
+    let flat = |ages: &[f64]| {
+        ages.iter()
+            .map(|&age_ma| HeatFlowPoint {
+                age_ma,
+                value: equilibrium,
+            })
+            .collect::<Vec<_>>()
+    };
     let (heat_flow_at_ages, heat_flow_grid, model_curve) = match &proposal.uniform {
         Some(fit) => (
             heat_flow::uniform_heat_flow_history(&lithosphere, fit, &ages),
             heat_flow::uniform_heat_flow_history(&lithosphere, fit, &grid),
-            grid.iter().map(|&a| (a, fit.subsidence_m(&lithosphere, a))).collect(),
+            grid.iter()
+                .map(|&a| (a, fit.subsidence_m(&lithosphere, a)))
+                .collect(),
         ),
         None => {
             let line = &proposal.no_rift;
-            let curve = grid.iter().map(|&a| (a, line.subsidence_at_oldest_m + line.rate_m_per_myr * (oldest - a))).collect();
+            let curve = grid
+                .iter()
+                .map(|&a| {
+                    (
+                        a,
+                        line.subsidence_at_oldest_m + line.rate_m_per_myr * (oldest - a),
+                    )
+                })
+                .collect();
             (flat(&ages), flat(&grid), curve)
         }
     };
@@ -123,10 +156,17 @@ pub fn interpret(history: &WellHistory, params: &ModelParameters, timing: Option
 /// Analyse one well: backstrip, then fit (with the team's timing when given). Pure and
 /// CPU-bound. A well that cannot be backstripped is an error; a well that cannot be
 /// fitted keeps its history and says why.
-pub fn analyse_well(well: &WellColumn, inputs: &StudyInputs, timing: Option<&[(f64, f64)]>) -> Result<WellAnalysis, ScienceError> {
+pub fn analyse_well(
+    well: &WellColumn,
+    inputs: &StudyInputs,
+    timing: Option<&[(f64, f64)]>,
+) -> Result<WellAnalysis, ScienceError> {
     let history = backstrip::backstrip(well, &inputs.catalogue, &inputs.params, &inputs.sea_level)?;
     let interpretation = interpret(&history, &inputs.params, timing).map_err(|e| e.to_string());
-    Ok(WellAnalysis { history, interpretation })
+    Ok(WellAnalysis {
+        history,
+        interpretation,
+    })
 }
 
 /// Analyse many wells on all cores, calling `progress` after each. Results keep the input order.
@@ -205,20 +245,32 @@ pub fn well_out(a: &WellAnalysis) -> WellOut {
                 i.proposal
                     .intervals
                     .iter()
-                    .map(|p| PhaseOut { phase: p.phase.label(), from_ma: p.from_ma, to_ma: p.to_ma })
+                    .map(|p| PhaseOut {
+                        phase: p.phase.label(),
+                        from_ma: p.from_ma,
+                        to_ma: p.to_ma,
+                    })
                     .collect()
             })
             .unwrap_or_default(),
         stretching: a.interpretation.as_ref().ok().and_then(stretching_out),
-        fit_note: match &a.interpretation {
-            Ok(i) if i.proposal.uniform.is_none() => Some("no rift: the subsidence is best explained without stretching".into()),
-            Ok(_) => None,
-            Err(e) => Some(format!("no fit: {e}")),
-        },
+        fit_note: fit_note(a),
     }
 }
 
-fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
+/// Why a well has no stretching fit, when it has none.
+pub fn fit_note(a: &WellAnalysis) -> Option<String> {
+    match &a.interpretation {
+        Ok(i) if i.proposal.uniform.is_none() => {
+            Some("no rift: the subsidence is best explained without stretching".into())
+        }
+        Ok(_) => None,
+        Err(e) => Some(format!("no fit: {e}")),
+    }
+}
+
+/// The `stretching` object of the contract, from an interpretation (None without a rift).
+pub fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
     let fit = i.proposal.uniform.as_ref()?;
     let first = fit.events.first()?;
     let last = fit.events.last()?;
@@ -229,15 +281,34 @@ fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
         TwoLayerOut {
             model: "two-layer",
             delta: t.delta,
-            delta_min: u.and_then(|u| u.two_layer_delta).map(|s| s.min()).unwrap_or(t.delta),
-            delta_max: u.and_then(|u| u.two_layer_delta).map(|s| s.max()).unwrap_or(t.delta),
+            delta_min: u
+                .and_then(|u| u.two_layer_delta)
+                .map(|s| s.min())
+                .unwrap_or(t.delta),
+            delta_max: u
+                .and_then(|u| u.two_layer_delta)
+                .map(|s| s.max())
+                .unwrap_or(t.delta),
             beta: t.beta,
-            beta_min: u.and_then(|u| u.two_layer_beta).map(|s| s.min()).unwrap_or(t.beta),
-            beta_max: u.and_then(|u| u.two_layer_beta).map(|s| s.max()).unwrap_or(t.beta),
+            beta_min: u
+                .and_then(|u| u.two_layer_beta)
+                .map(|s| s.min())
+                .unwrap_or(t.beta),
+            beta_max: u
+                .and_then(|u| u.two_layer_beta)
+                .map(|s| s.max())
+                .unwrap_or(t.beta),
             rift_onset_ma: t.rift_onset_ma,
             rift_end_ma: t.rift_end_ma,
             rms_misfit_m: t.rms_misfit_m,
-            heat_flow_mw_m2: i.two_layer_heat_flow_at_ages.iter().map(|p| contract::HeatFlowPoint { age_ma: p.age_ma, value: p.value }).collect(),
+            heat_flow_mw_m2: i
+                .two_layer_heat_flow_at_ages
+                .iter()
+                .map(|p| contract::HeatFlowPoint {
+                    age_ma: p.age_ma,
+                    value: p.value,
+                })
+                .collect(),
         }
     });
     Some(StretchingOut {
@@ -248,7 +319,14 @@ fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
         rift_onset_ma: first.rift_onset_ma,
         rift_end_ma: last.rift_end_ma,
         rms_misfit_m: fit.rms_misfit_m,
-        heat_flow_mw_m2: i.heat_flow_at_ages.iter().map(|p| contract::HeatFlowPoint { age_ma: p.age_ma, value: p.value }).collect(),
+        heat_flow_mw_m2: i
+            .heat_flow_at_ages
+            .iter()
+            .map(|p| contract::HeatFlowPoint {
+                age_ma: p.age_ma,
+                value: p.value,
+            })
+            .collect(),
         origin: match i.proposal.origin {
             phases::PickOrigin::Proposed => "proposed",
             phases::PickOrigin::Team => "team pick",
@@ -256,7 +334,11 @@ fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
         rift_events: fit
             .events
             .iter()
-            .map(|e| RiftEventOut { rift_onset_ma: e.rift_onset_ma, rift_end_ma: e.rift_end_ma, beta: e.beta })
+            .map(|e| RiftEventOut {
+                rift_onset_ma: e.rift_onset_ma,
+                rift_end_ma: e.rift_end_ma,
+                beta: e.beta,
+            })
             .collect(),
         two_layer,
     })
@@ -275,7 +357,11 @@ pub fn failed_well_out(name: &str, error: &ScienceError) -> WellOut {
 }
 
 /// The whole report of a set of wells.
-pub fn report(wells: &[WellColumn], results: &[Result<WellAnalysis, ScienceError>], inputs: &StudyInputs) -> Report {
+pub fn report(
+    wells: &[WellColumn],
+    results: &[Result<WellAnalysis, ScienceError>],
+    inputs: &StudyInputs,
+) -> Report {
     Report {
         parameters: parameters_out(inputs),
         wells: wells

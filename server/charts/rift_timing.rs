@@ -20,6 +20,8 @@ pub struct RiftTimingWell {
     pub rift_onset_ma: f64,
     /// Age at which rifting ended (Ma).
     pub rift_end_ma: f64,
+    /// Later rift events of the same well, (onset, end) in Ma, drawn on its row.
+    pub later_events: Vec<(f64, f64)>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq)]
@@ -67,9 +69,13 @@ fn draw(data: &RiftTimingData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
         .map(|w| text_width(&w.name, TEXT_PX))
         .fold(0.0, f64::max);
     let name_room = longest.clamp(40.0, 160.0);
-    let (young, old) =
-        super::frame::extent(wells.iter().flat_map(|w| [w.rift_onset_ma, w.rift_end_ma]))
-            .unwrap_or((0.0, 1.0));
+    let (young, old) = super::frame::extent(wells.iter().flat_map(|w| {
+        [w.rift_onset_ma, w.rift_end_ma]
+            .into_iter()
+            .chain(w.later_events.iter().flat_map(|&(o, e)| [o, e]))
+            .filter(|v| v.is_finite())
+    }))
+    .unwrap_or((0.0, 1.0));
     let (young, old) = padded(young, old, 0.05, 2.0);
     let spec = AxesSpec {
         // Ages are not negative: the padding stops at the present.
@@ -110,15 +116,26 @@ fn draw(data: &RiftTimingData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
                 (right - origin.0, down - origin.1),
             ]
         };
-        let a = chart.backend_coord(&(well.rift_onset_ma, top));
-        let b = chart.backend_coord(&(well.rift_end_ma, bottom));
-        let (left, right) = (a.0.min(b.0), a.0.max(b.0).max(a.0.min(b.0) + 2));
-        let rect = corners((left, a.1.min(b.1)), (right, a.1.max(b.1)));
-        plot.draw(&Rectangle::new(
-            rect,
-            with_alpha(RIFT_BAR, BAR_COLOUR_ALPHA).filled(),
-        ))?;
-        plot.draw(&Rectangle::new(rect, INK.stroke_width(1)))?;
+        let intervals = std::iter::once((well.rift_onset_ma, well.rift_end_ma)).chain(
+            well.later_events
+                .iter()
+                .copied()
+                .filter(|(o, e)| o.is_finite() && e.is_finite()),
+        );
+        for (k, (onset, end)) in intervals.enumerate() {
+            let a = chart.backend_coord(&(onset, top));
+            let b = chart.backend_coord(&(end, bottom));
+            let (left, right) = (a.0.min(b.0), a.0.max(b.0).max(a.0.min(b.0) + 2));
+            let rect = corners((left, a.1.min(b.1)), (right, a.1.max(b.1)));
+            // A later event is drawn lighter, so the first rift stays the eye's anchor.
+            let alpha = if k == 0 {
+                BAR_COLOUR_ALPHA
+            } else {
+                BAR_COLOUR_ALPHA * 0.45
+            };
+            plot.draw(&Rectangle::new(rect, with_alpha(RIFT_BAR, alpha).filled()))?;
+            plot.draw(&Rectangle::new(rect, INK.stroke_width(1)))?;
+        }
         if i % stride == 0 {
             let (_, centre) = chart.backend_coord(&(well.rift_onset_ma, row + 0.5));
             let at = (x_px.start - 8 - origin.0, centre - origin.1);
@@ -236,6 +253,7 @@ mod tests {
                 name: format!("W-{i:02}"),
                 rift_onset_ma: 150.0 - f64::from(i) * 0.5,
                 rift_end_ma: 120.0 - f64::from(i) * 0.3,
+                later_events: Vec::new(),
             })
             .collect();
         let svg = rift_timing_chart(

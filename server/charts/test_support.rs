@@ -310,6 +310,7 @@ pub(crate) fn sample_rift_timing() -> RiftTimingData {
         name: name.into(),
         rift_onset_ma,
         rift_end_ma,
+        later_events: Vec::new(),
     };
     RiftTimingData {
         title: "Rift timing across the study".into(),
@@ -376,6 +377,7 @@ fn every_chart_survives_odd_sizes_and_sparse_data() {
                         name: "A".into(),
                         rift_onset_ma: 10.0,
                         rift_end_ma: 10.0,
+                        later_events: Vec::new(),
                     }],
                     wells_without_fit: Vec::new(),
                 },

@@ -215,7 +215,10 @@ impl WellColumn {
                 if s.depth_m != surfaces[i - 1].depth_m {
                     return Err(bad(format!(
                         "surface '{}' carries an erosion but lies at {} m, not at the depth of the surface above it ('{}', {} m): an erosional unconformity is two surfaces at one depth",
-                        s.horizon, s.depth_m, surfaces[i - 1].horizon, surfaces[i - 1].depth_m
+                        s.horizon,
+                        s.depth_m,
+                        surfaces[i - 1].horizon,
+                        surfaces[i - 1].depth_m
                     )));
                 }
                 let above_age = surfaces[i - 1].age_ma;
@@ -237,7 +240,9 @@ impl WellColumn {
 
     /// The deepest surface: the base of the analysed column.
     pub fn base(&self) -> &Surface {
-        self.surfaces.last().expect("a column has at least two surfaces")
+        self.surfaces
+            .last()
+            .expect("a column has at least two surfaces")
     }
 }
 
@@ -318,14 +323,20 @@ mod tests {
         assert!(WellColumn::new("w", vec![surface("a", 0.0, 0.0, None)]).is_err());
         let err = WellColumn::new(
             "w",
-            vec![surface("a", 0.0, 10.0, Some("shale")), surface("b", 100.0, 5.0, None)],
+            vec![
+                surface("a", 0.0, 10.0, Some("shale")),
+                surface("b", 100.0, 5.0, None),
+            ],
         )
         .unwrap_err();
         assert!(err.to_string().contains("not older"), "{err}");
         assert!(
             WellColumn::new(
                 "w",
-                vec![surface("a", 0.0, 0.0, Some("shale")), surface("b", 100.0, 5.0, None)]
+                vec![
+                    surface("a", 0.0, 0.0, Some("shale")),
+                    surface("b", 100.0, 5.0, None)
+                ]
             )
             .is_ok()
         );
@@ -334,8 +345,14 @@ mod tests {
     #[test]
     fn sea_level_interpolates_linearly_and_holds_ends() {
         let c = SeaLevelCurve::new(vec![
-            SeaLevelPoint { age_ma: 60.0, sea_level_m: 50.0 },
-            SeaLevelPoint { age_ma: 20.0, sea_level_m: 20.0 },
+            SeaLevelPoint {
+                age_ma: 60.0,
+                sea_level_m: 50.0,
+            },
+            SeaLevelPoint {
+                age_ma: 20.0,
+                sea_level_m: 20.0,
+            },
         ])
         .unwrap();
         assert_eq!(c.at(40.0), 35.0);
@@ -348,8 +365,14 @@ mod tests {
     fn a_mix_label_round_trips_percentages() {
         let m = LithologyMix {
             parts: vec![
-                MixPart { lithology: "shale".into(), fraction: 0.6 },
-                MixPart { lithology: "sandstone".into(), fraction: 0.4 },
+                MixPart {
+                    lithology: "shale".into(),
+                    fraction: 0.6,
+                },
+                MixPart {
+                    lithology: "sandstone".into(),
+                    fraction: 0.4,
+                },
             ],
         };
         assert_eq!(m.label(), "shale:60;sandstone:40");

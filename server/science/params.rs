@@ -55,15 +55,69 @@ pub struct ParameterRange {
 /// Physical ranges, wide enough for any Earth lithosphere and narrow enough to catch
 /// unit mistakes (a density in g/cm^3, a thickness in km). Common practice, not a source.
 pub const PARAMETER_RANGES: [ParameterRange; 9] = [
-    ParameterRange { name: "mantle_density_kg_m3", label: "Mantle density", unit: "kg/m³", min: 3000.0, max: 3600.0 },
-    ParameterRange { name: "crust_density_kg_m3", label: "Crust density", unit: "kg/m³", min: 2400.0, max: 3100.0 },
-    ParameterRange { name: "water_density_kg_m3", label: "Water density", unit: "kg/m³", min: 990.0, max: 1200.0 },
-    ParameterRange { name: "lithosphere_thickness_m", label: "Lithosphere thickness", unit: "m", min: 50_000.0, max: 300_000.0 },
-    ParameterRange { name: "crust_thickness_m", label: "Initial crust thickness", unit: "m", min: 10_000.0, max: 70_000.0 },
-    ParameterRange { name: "asthenosphere_temperature_c", label: "Asthenosphere temperature", unit: "°C", min: 1000.0, max: 1600.0 },
-    ParameterRange { name: "thermal_expansion_per_c", label: "Thermal expansion", unit: "1/°C", min: 1e-5, max: 6e-5 },
-    ParameterRange { name: "thermal_diffusivity_m2_s", label: "Thermal diffusivity", unit: "m²/s", min: 3e-7, max: 2e-6 },
-    ParameterRange { name: "thermal_conductivity_w_m_k", label: "Thermal conductivity", unit: "W/(m·K)", min: 1.0, max: 6.0 },
+    ParameterRange {
+        name: "mantle_density_kg_m3",
+        label: "Mantle density",
+        unit: "kg/m³",
+        min: 3000.0,
+        max: 3600.0,
+    },
+    ParameterRange {
+        name: "crust_density_kg_m3",
+        label: "Crust density",
+        unit: "kg/m³",
+        min: 2400.0,
+        max: 3100.0,
+    },
+    ParameterRange {
+        name: "water_density_kg_m3",
+        label: "Water density",
+        unit: "kg/m³",
+        min: 990.0,
+        max: 1200.0,
+    },
+    ParameterRange {
+        name: "lithosphere_thickness_m",
+        label: "Lithosphere thickness",
+        unit: "m",
+        min: 50_000.0,
+        max: 300_000.0,
+    },
+    ParameterRange {
+        name: "crust_thickness_m",
+        label: "Initial crust thickness",
+        unit: "m",
+        min: 10_000.0,
+        max: 70_000.0,
+    },
+    ParameterRange {
+        name: "asthenosphere_temperature_c",
+        label: "Asthenosphere temperature",
+        unit: "°C",
+        min: 1000.0,
+        max: 1600.0,
+    },
+    ParameterRange {
+        name: "thermal_expansion_per_c",
+        label: "Thermal expansion",
+        unit: "1/°C",
+        min: 1e-5,
+        max: 6e-5,
+    },
+    ParameterRange {
+        name: "thermal_diffusivity_m2_s",
+        label: "Thermal diffusivity",
+        unit: "m²/s",
+        min: 3e-7,
+        max: 2e-6,
+    },
+    ParameterRange {
+        name: "thermal_conductivity_w_m_k",
+        label: "Thermal conductivity",
+        unit: "W/(m·K)",
+        min: 1.0,
+        max: 6.0,
+    },
 ];
 
 impl ModelParameters {
@@ -131,7 +185,9 @@ impl ModelParameters {
     /// Thermal time constant tau = a^2 / (pi^2 kappa), in Myr (SCIENCE.md 4.1).
     pub fn thermal_time_constant_myr(&self) -> f64 {
         let a = self.lithosphere_thickness_m;
-        a * a / (std::f64::consts::PI.powi(2) * self.thermal_diffusivity_m2_s) / super::SECONDS_PER_MYR
+        a * a
+            / (std::f64::consts::PI.powi(2) * self.thermal_diffusivity_m2_s)
+            / super::SECONDS_PER_MYR
     }
 }
 
@@ -164,9 +220,16 @@ mod tests {
 
     #[test]
     fn a_density_in_grams_per_cc_is_refused_with_its_range() {
-        let p = ModelParameters { mantle_density_kg_m3: 3.33, ..Default::default() };
+        let p = ModelParameters {
+            mantle_density_kg_m3: 3.33,
+            ..Default::default()
+        };
         let problems = p.validate().unwrap_err();
         assert_eq!(problems.len(), 1);
-        assert!(problems[0].to_string().contains("3000 to 3600"), "{}", problems[0]);
+        assert!(
+            problems[0].to_string().contains("3000 to 3600"),
+            "{}",
+            problems[0]
+        );
     }
 }

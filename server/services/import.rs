@@ -66,7 +66,11 @@ impl ValidatedUpload {
 /// Parse and validate every file; all problems of all files are returned together.
 /// `catalogue` holds the study's lithology names. CPU-bound: call it from
 /// `spawn_blocking` for large files.
-pub fn validate(files: &UploadFiles, options: &UploadOptions, catalogue: &[String]) -> Result<ValidatedUpload, Vec<InputProblem>> {
+pub fn validate(
+    files: &UploadFiles,
+    options: &UploadOptions,
+    catalogue: &[String],
+) -> Result<ValidatedUpload, Vec<InputProblem>> {
     if files.tops.is_none() && files.wells.is_none() && files.sea_level.is_none() {
         return Err(vec![InputProblem {
             file: "upload".into(),
@@ -86,7 +90,12 @@ pub fn validate(files: &UploadFiles, options: &UploadOptions, catalogue: &[Strin
             file_name: Some(f.file_name.clone()),
             ..options.tops.clone()
         };
-        let spelling = |name: &str| catalogue.iter().find(|c| c.eq_ignore_ascii_case(name)).cloned();
+        let spelling = |name: &str| {
+            catalogue
+                .iter()
+                .find(|c| c.eq_ignore_ascii_case(name))
+                .cloned()
+        };
         match input::parse_tops_with_catalogue(&f.bytes, &opts, &spelling) {
             Ok(t) => out.tops = Some((f.file_name.clone(), t)),
             Err(p) => problems.extend(p),
@@ -111,7 +120,11 @@ pub fn validate(files: &UploadFiles, options: &UploadOptions, catalogue: &[Strin
             }
         }
     }
-    if problems.is_empty() { Ok(out) } else { Err(problems) }
+    if problems.is_empty() {
+        Ok(out)
+    } else {
+        Err(problems)
+    }
 }
 
 /// What an upload stored.
@@ -126,7 +139,11 @@ pub struct ImportOutcome {
 }
 
 /// Which of the upload's wells the study already holds.
-pub async fn existing_wells(db: &SqlitePool, study_id: i64, upload: &ValidatedUpload) -> Result<Vec<String>, ServiceError> {
+pub async fn existing_wells(
+    db: &SqlitePool,
+    study_id: i64,
+    upload: &ValidatedUpload,
+) -> Result<Vec<String>, ServiceError> {
     let mut conn = db.acquire().await?;
     Ok(store::wells::existing_names(&mut conn, study_id, &upload.well_names()).await?)
 }
@@ -167,7 +184,16 @@ pub async fn store_upload(
     }
 
     if let Some((file_name, tops)) = &upload.tops {
-        let upload_id = store::uploads::insert(&mut *tx, study_id, file_name, "tops", actor, tops.rows as i64, "stored").await?;
+        let upload_id = store::uploads::insert(
+            &mut *tx,
+            study_id,
+            file_name,
+            "tops",
+            actor,
+            tops.rows as i64,
+            "stored",
+        )
+        .await?;
         for well in &tops.wells {
             let replaced = existing.contains(&well.name);
             let before = if replaced {
@@ -180,7 +206,8 @@ pub async fn store_upload(
             } else {
                 None
             };
-            let well_id = store::wells::insert(&mut *tx, study_id, &well.name, Some(upload_id)).await?;
+            let well_id =
+                store::wells::insert(&mut *tx, study_id, &well.name, Some(upload_id)).await?;
             store::wells::insert_surfaces(&mut tx, well_id, &well.surfaces).await?;
             outcome.surfaces_stored += well.surfaces.len();
             store::activity::record(
@@ -250,11 +277,26 @@ pub async fn store_upload(
             }]));
         }
         let text = format!("stored: {} well location(s)", outcome.locations_set);
-        store::uploads::insert(&mut *tx, study_id, file_name, "wells", actor, wells.rows as i64, &text).await?;
+        store::uploads::insert(
+            &mut *tx,
+            study_id,
+            file_name,
+            "wells",
+            actor,
+            wells.rows as i64,
+            &text,
+        )
+        .await?;
         store::activity::record(
             &mut *tx,
             Some(study_id),
-            Change { actor, action: "upload", subject: file_name, before: None, after: Some(text) },
+            Change {
+                actor,
+                action: "upload",
+                subject: file_name,
+                before: None,
+                after: Some(text),
+            },
         )
         .await?;
     }
@@ -265,7 +307,16 @@ pub async fn store_upload(
         let n = curve.points().len();
         outcome.sea_level_points = Some(n);
         let text = format!("stored: sea-level curve of {n} point(s)");
-        store::uploads::insert(&mut *tx, study_id, file_name, "sea level", actor, n as i64, &text).await?;
+        store::uploads::insert(
+            &mut *tx,
+            study_id,
+            file_name,
+            "sea level",
+            actor,
+            n as i64,
+            &text,
+        )
+        .await?;
         store::activity::record(
             &mut *tx,
             Some(study_id),

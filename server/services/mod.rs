@@ -23,11 +23,13 @@ pub enum ServiceError {
     Conflict(String),
     /// A save made against an old version; `current` is the stored state (JSON).
     #[error("{message}")]
-    Stale { message: String, current: Option<serde_json::Value> },
+    Stale {
+        message: String,
+        current: Option<serde_json::Value>,
+    },
     #[error(transparent)]
     Database(#[from] sqlx::Error),
 }
-
 
 use crate::science::ModelParameters;
 use crate::science::lithology::{Catalogue, Lithology};
@@ -38,7 +40,12 @@ use sqlx::SqlitePool;
 
 /// Create a study with the default model parameters and the published lithology
 /// catalogue. Returns its id.
-pub async fn create_study(db: &SqlitePool, name: &str, description: &str, actor: &str) -> Result<i64, sqlx::Error> {
+pub async fn create_study(
+    db: &SqlitePool,
+    name: &str,
+    description: &str,
+    actor: &str,
+) -> Result<i64, sqlx::Error> {
     let mut tx = db.begin().await?;
     let params = ModelParameters::default();
     let id = store::studies::insert(&mut *tx, name, description, &params).await?;
@@ -71,7 +78,12 @@ pub async fn create_study(db: &SqlitePool, name: &str, description: &str, actor:
 }
 
 /// Replace a study's model parameters (already validated), recording before -> after.
-pub async fn update_parameters(db: &SqlitePool, study_id: i64, p: &ModelParameters, actor: &str) -> Result<(), ServiceError> {
+pub async fn update_parameters(
+    db: &SqlitePool,
+    study_id: i64,
+    p: &ModelParameters,
+    actor: &str,
+) -> Result<(), ServiceError> {
     let mut tx = db.begin().await?;
     let before = store::studies::get(&mut *tx, study_id)
         .await?
@@ -115,22 +127,35 @@ pub struct LithologyEdit {
 }
 
 /// Add a lithology or change one (matched by name), after checking physical ranges.
-pub async fn save_lithology(db: &SqlitePool, study_id: i64, edit: &LithologyEdit, actor: &str) -> Result<(), ServiceError> {
+pub async fn save_lithology(
+    db: &SqlitePool,
+    study_id: i64,
+    edit: &LithologyEdit,
+    actor: &str,
+) -> Result<(), ServiceError> {
     let name = edit.name.trim();
     if name.is_empty() || name.contains([':', ';', ',']) {
         return Err(ServiceError::Invalid(
             "A lithology needs a name without ':', ';' or ',' (they separate mix parts).".into(),
         ));
     }
-    let lith = Lithology::new(name, edit.surface_porosity, edit.compaction_per_km, edit.grain_density_kg_m3)
-        .map_err(|e| ServiceError::Invalid(format!("Lithology '{name}': {e}")))?;
+    let lith = Lithology::new(
+        name,
+        edit.surface_porosity,
+        edit.compaction_per_km,
+        edit.grain_density_kg_m3,
+    )
+    .map_err(|e| ServiceError::Invalid(format!("Lithology '{name}': {e}")))?;
     let mut tx = db.begin().await?;
     let before = store::lithologies::list(&mut *tx, study_id)
         .await?
         .into_iter()
         .find(|l| l.name.eq_ignore_ascii_case(name));
     let source = if edit.source.trim().is_empty() {
-        before.as_ref().map(|b| b.source.clone()).unwrap_or_else(|| "entered by the team".into())
+        before
+            .as_ref()
+            .map(|b| b.source.clone())
+            .unwrap_or_else(|| "entered by the team".into())
     } else {
         edit.source.trim().to_string()
     };
@@ -144,16 +169,31 @@ pub async fn save_lithology(db: &SqlitePool, study_id: i64, edit: &LithologyEdit
         &source,
     )
     .await?;
-    let describe = |phi: f64, c: f64, rho: f64| format!("phi0 {phi}, c {c} /km, grain density {rho} kg/m³");
+    let describe =
+        |phi: f64, c: f64, rho: f64| format!("phi0 {phi}, c {c} /km, grain density {rho} kg/m³");
     store::activity::record(
         &mut *tx,
         Some(study_id),
         Change {
             actor,
-            action: if before.is_some() { "edit lithology" } else { "add lithology" },
+            action: if before.is_some() {
+                "edit lithology"
+            } else {
+                "add lithology"
+            },
             subject: name,
-            before: before.map(|b| describe(b.surface_porosity, b.compaction_per_km, b.grain_density_kg_m3)),
-            after: Some(describe(lith.surface_porosity, lith.compaction_per_km, lith.grain_density_kg_m3)),
+            before: before.map(|b| {
+                describe(
+                    b.surface_porosity,
+                    b.compaction_per_km,
+                    b.grain_density_kg_m3,
+                )
+            }),
+            after: Some(describe(
+                lith.surface_porosity,
+                lith.compaction_per_km,
+                lith.grain_density_kg_m3,
+            )),
         },
     )
     .await?;
@@ -162,7 +202,12 @@ pub async fn save_lithology(db: &SqlitePool, study_id: i64, edit: &LithologyEdit
 }
 
 /// Remove a lithology that no surface uses.
-pub async fn delete_lithology(db: &SqlitePool, study_id: i64, lithology_id: i64, actor: &str) -> Result<(), ServiceError> {
+pub async fn delete_lithology(
+    db: &SqlitePool,
+    study_id: i64,
+    lithology_id: i64,
+    actor: &str,
+) -> Result<(), ServiceError> {
     let mut tx = db.begin().await?;
     let row = store::lithologies::get(&mut *tx, study_id, lithology_id)
         .await?
@@ -195,7 +240,10 @@ pub async fn delete_lithology(db: &SqlitePool, study_id: i64, lithology_id: i64,
 }
 
 /// Everything a study's wells are analysed with: parameters, catalogue, sea level.
-pub async fn study_inputs(db: &SqlitePool, study_id: i64) -> Result<crate::analysis::StudyInputs, ServiceError> {
+pub async fn study_inputs(
+    db: &SqlitePool,
+    study_id: i64,
+) -> Result<crate::analysis::StudyInputs, ServiceError> {
     let study = store::studies::get(db, study_id)
         .await?
         .ok_or_else(|| ServiceError::NotFound(format!("study {study_id}")))?;
@@ -203,14 +251,23 @@ pub async fn study_inputs(db: &SqlitePool, study_id: i64) -> Result<crate::analy
     let lithologies = rows
         .into_iter()
         .map(|r| {
-            Lithology::new(&r.name, r.surface_porosity, r.compaction_per_km, r.grain_density_kg_m3)
-                .map(|l| l.with_source(r.source))
-                .map_err(|e| ServiceError::Invalid(format!("lithology '{}' of this study: {e}", r.name)))
+            Lithology::new(
+                &r.name,
+                r.surface_porosity,
+                r.compaction_per_km,
+                r.grain_density_kg_m3,
+            )
+            .map(|l| l.with_source(r.source))
+            .map_err(|e| {
+                ServiceError::Invalid(format!("lithology '{}' of this study: {e}", r.name))
+            })
         })
         .collect::<Result<Vec<_>, _>>()?;
-    let catalogue = Catalogue::new(lithologies).map_err(|e| ServiceError::Invalid(e.to_string()))?;
+    let catalogue =
+        Catalogue::new(lithologies).map_err(|e| ServiceError::Invalid(e.to_string()))?;
     let points = store::sea_level::points(db, study_id).await?;
-    let sea_level = crate::science::SeaLevelCurve::new(points).map_err(|e| ServiceError::Invalid(e.to_string()))?;
+    let sea_level = crate::science::SeaLevelCurve::new(points)
+        .map_err(|e| ServiceError::Invalid(e.to_string()))?;
     Ok(crate::analysis::StudyInputs {
         params: study.parameters(),
         catalogue,
@@ -219,7 +276,10 @@ pub async fn study_inputs(db: &SqlitePool, study_id: i64) -> Result<crate::analy
 }
 
 /// A stored well as the science core's column.
-pub fn well_column(name: &str, rows: &[store::wells::SurfaceRow]) -> Result<crate::science::WellColumn, ServiceError> {
+pub fn well_column(
+    name: &str,
+    rows: &[store::wells::SurfaceRow],
+) -> Result<crate::science::WellColumn, ServiceError> {
     crate::science::WellColumn::new(name, rows.iter().map(|r| r.to_surface()).collect())
         .map_err(|e| ServiceError::Invalid(e.to_string()))
 }

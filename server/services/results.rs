@@ -11,7 +11,7 @@ use crate::store::wells::{SurfaceRow, WellRow};
 use rayon::prelude::*;
 use sqlx::SqlitePool;
 use std::collections::HashMap;
-use std::sync::Arc;
+use std::sync::{Arc, Mutex};
 
 /// A well's analysis, or why it could not be analysed (in words for the user).
 pub type WellOutcome = Result<Arc<WellAnalysis>, String>;
@@ -24,6 +24,50 @@ pub struct WellResult {
     pub outcome: WellOutcome,
 }
 
+/// A whole study's results, remembered with the study revision they were made at
+/// (the newest activity row: every change writes one). A repeated overview of an
+/// unchanged study then costs one query instead of reloading every surface.
+#[derive(Debug, Default)]
+pub struct StudyMemo {
+    studies: Mutex<HashMap<i64, (i64, Arc<StudyResults>)>>,
+}
+
+/// The inputs and per-well results of a study.
+pub type StudyResults = (StudyInputs, Vec<WellResult>);
+
+impl StudyMemo {
+    fn get(&self, study_id: i64, revision: i64) -> Option<Arc<StudyResults>> {
+        let map = self.studies.lock().expect("study memo lock");
+        map.get(&study_id)
+            .filter(|(r, _)| *r == revision)
+            .map(|(_, v)| Arc::clone(v))
+    }
+
+    fn put(&self, study_id: i64, revision: i64, results: Arc<StudyResults>) {
+        self.studies
+            .lock()
+            .expect("study memo lock")
+            .insert(study_id, (revision, results));
+    }
+}
+
+/// Every well of a study with the team's picks applied, remembered per revision.
+pub async fn study_results_memo(
+    db: &SqlitePool,
+    cache: &Arc<AnalysisCache>,
+    memo: &StudyMemo,
+    study_id: i64,
+) -> Result<Arc<StudyResults>, ServiceError> {
+    let revision = store::activity::latest_id(db, study_id).await?;
+    if let Some(hit) = memo.get(study_id, revision) {
+        return Ok(hit);
+    }
+    let timings = super::review::study_timings(db, study_id).await?;
+    let results = Arc::new(study_results(db, cache, study_id, &timings).await?);
+    memo.put(study_id, revision, Arc::clone(&results));
+    Ok(results)
+}
+
 /// Analyse (or fetch from the cache) every well of a study, in name order.
 /// `timings` holds the team's rift timing by well id.
 pub async fn study_results(
@@ -31,7 +75,7 @@ pub async fn study_results(
     cache: &Arc<AnalysisCache>,
     study_id: i64,
     timings: &HashMap<i64, RiftTiming>,
-) -> Result<(StudyInputs, Vec<WellResult>), ServiceError> {
+) -> Result<StudyResults, ServiceError> {
     let inputs = super::study_inputs(db, study_id).await?;
     let wells = store::wells::list(db, study_id).await?;
     let mut by_well: HashMap<i64, Vec<SurfaceRow>> = HashMap::new();
@@ -61,7 +105,9 @@ pub async fn well_result(
     let inputs = super::study_inputs(db, study_id).await?;
     let surfaces = store::wells::surfaces(db, well.id).await?;
     let mut results = run(cache, &inputs, vec![(well, surfaces, timing)]).await?;
-    let result = results.pop().ok_or_else(|| ServiceError::Invalid("no result".into()))?;
+    let result = results
+        .pop()
+        .ok_or_else(|| ServiceError::Invalid("no result".into()))?;
     Ok((inputs, result))
 }
 
@@ -75,8 +121,13 @@ async fn run(
     tokio::task::spawn_blocking(move || {
         jobs.into_par_iter()
             .map(|(well, surfaces, timing)| {
-                let outcome = analyse_cached(&cache, &inputs, &well.name, &surfaces, timing.as_deref());
-                WellResult { well, surfaces, outcome }
+                let outcome =
+                    analyse_cached(&cache, &inputs, &well.name, &surfaces, timing.as_deref());
+                WellResult {
+                    well,
+                    surfaces,
+                    outcome,
+                }
             })
             .collect()
     })
@@ -96,7 +147,8 @@ fn analyse_cached(
     if let Some(hit) = cache.get(key) {
         return Ok(hit);
     }
-    let analysis = Arc::new(analysis::analyse_well(&column, inputs, timing).map_err(|e| e.to_string())?);
+    let analysis =
+        Arc::new(analysis::analyse_well(&column, inputs, timing).map_err(|e| e.to_string())?);
     cache.insert(key, Arc::clone(&analysis));
     Ok(analysis)
 }

@@ -25,7 +25,11 @@ pub struct Change<'a> {
     pub after: Option<String>,
 }
 
-pub async fn record(db: impl SqliteExecutor<'_>, study_id: Option<i64>, c: Change<'_>) -> StoreResult<()> {
+pub async fn record(
+    db: impl SqliteExecutor<'_>,
+    study_id: Option<i64>,
+    c: Change<'_>,
+) -> StoreResult<()> {
     sqlx::query(
         "INSERT INTO activity (study_id, actor, action, subject, before_state, after_state)
          VALUES (?, ?, ?, ?, ?, ?)",
@@ -58,4 +62,13 @@ pub async fn list(
     .bind(limit)
     .fetch_all(db)
     .await
+}
+
+/// The id of the newest activity row of a study (0 if none): every change writes one,
+/// so this names the study's current revision.
+pub async fn latest_id(db: impl SqliteExecutor<'_>, study_id: i64) -> StoreResult<i64> {
+    sqlx::query_scalar("SELECT COALESCE(MAX(id), 0) FROM activity WHERE study_id = ?")
+        .bind(study_id)
+        .fetch_one(db)
+        .await
 }

@@ -24,7 +24,11 @@ pub async fn list(db: impl SqliteExecutor<'_>, study_id: i64) -> StoreResult<Vec
     .await
 }
 
-pub async fn get(db: impl SqliteExecutor<'_>, study_id: i64, id: i64) -> StoreResult<Option<LithologyRow>> {
+pub async fn get(
+    db: impl SqliteExecutor<'_>,
+    study_id: i64,
+    id: i64,
+) -> StoreResult<Option<LithologyRow>> {
     sqlx::query_as(
         "SELECT id, name, surface_porosity, compaction_per_km, grain_density_kg_m3, source
          FROM lithologies WHERE study_id = ? AND id = ?",
@@ -66,7 +70,11 @@ pub async fn upsert(
 }
 
 /// How many surfaces of the study name this lithology (alone or in a mix).
-pub async fn usage_count(conn: &mut SqliteConnection, study_id: i64, name: &str) -> StoreResult<i64> {
+pub async fn usage_count(
+    conn: &mut SqliteConnection,
+    study_id: i64,
+    name: &str,
+) -> StoreResult<i64> {
     let labels: Vec<String> = sqlx::query_scalar(
         "SELECT f.lithology FROM surfaces f JOIN wells w ON w.id = f.well_id
          WHERE w.study_id = ? AND f.lithology IS NOT NULL",
@@ -77,9 +85,13 @@ pub async fn usage_count(conn: &mut SqliteConnection, study_id: i64, name: &str)
     let n = labels
         .iter()
         .filter(|label| {
-            label
-                .split(';')
-                .any(|part| part.split(':').next().unwrap_or("").trim().eq_ignore_ascii_case(name))
+            label.split(';').any(|part| {
+                part.split(':')
+                    .next()
+                    .unwrap_or("")
+                    .trim()
+                    .eq_ignore_ascii_case(name)
+            })
         })
         .count();
     Ok(n as i64)

@@ -55,7 +55,11 @@ pub async fn for_study(db: impl SqliteExecutor<'_>, study_id: i64) -> StoreResul
     .await
 }
 
-pub async fn get(db: impl SqliteExecutor<'_>, well_id: i64, event: i64) -> StoreResult<Option<PickRow>> {
+pub async fn get(
+    db: impl SqliteExecutor<'_>,
+    well_id: i64,
+    event: i64,
+) -> StoreResult<Option<PickRow>> {
     sqlx::query_as(select_picks!("WHERE p.well_id = ? AND p.event = ?"))
         .bind(well_id)
         .bind(event)
@@ -64,7 +68,13 @@ pub async fn get(db: impl SqliteExecutor<'_>, well_id: i64, event: i64) -> Store
 }
 
 /// Create a pick (version 1). Returns false if one exists already for this well and event.
-pub async fn insert(db: impl SqliteExecutor<'_>, well_id: i64, event: i64, v: &PickValues<'_>, by: &str) -> StoreResult<bool> {
+pub async fn insert(
+    db: impl SqliteExecutor<'_>,
+    well_id: i64,
+    event: i64,
+    v: &PickValues<'_>,
+    by: &str,
+) -> StoreResult<bool> {
     let done = sqlx::query(
         "INSERT INTO picks (well_id, event, rift_onset_ma, rift_end_ma, model, state, version, updated_by)
          VALUES (?, ?, ?, ?, ?, ?, 1, ?) ON CONFLICT (well_id, event) DO NOTHING",
@@ -110,7 +120,12 @@ pub async fn update(
 }
 
 /// Remove a pick made against version `expected` (back to the proposal).
-pub async fn delete(db: impl SqliteExecutor<'_>, well_id: i64, event: i64, expected: i64) -> StoreResult<bool> {
+pub async fn delete(
+    db: impl SqliteExecutor<'_>,
+    well_id: i64,
+    event: i64,
+    expected: i64,
+) -> StoreResult<bool> {
     let done = sqlx::query("DELETE FROM picks WHERE well_id = ? AND event = ? AND version = ?")
         .bind(well_id)
         .bind(event)

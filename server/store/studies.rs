@@ -82,7 +82,10 @@ pub async fn get(db: impl SqliteExecutor<'_>, id: i64) -> StoreResult<Option<Stu
         .await
 }
 
-pub async fn find_by_name(db: impl SqliteExecutor<'_>, name: &str) -> StoreResult<Option<StudyRow>> {
+pub async fn find_by_name(
+    db: impl SqliteExecutor<'_>,
+    name: &str,
+) -> StoreResult<Option<StudyRow>> {
     sqlx::query_as("SELECT * FROM studies WHERE name = ?")
         .bind(name)
         .fetch_optional(db)

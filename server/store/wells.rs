@@ -88,7 +88,10 @@ fn parse_stored_mix(label: &str) -> LithologyMix {
     LithologyMix { parts }
 }
 
-pub async fn summaries(db: impl SqliteExecutor<'_>, study_id: i64) -> StoreResult<Vec<WellSummary>> {
+pub async fn summaries(
+    db: impl SqliteExecutor<'_>,
+    study_id: i64,
+) -> StoreResult<Vec<WellSummary>> {
     sqlx::query_as(
         "SELECT w.id, w.name, w.x, w.y, COUNT(f.id) AS surfaces,
                 MIN(f.depth_m) AS top_depth_m, MAX(f.depth_m) AS base_depth_m,
@@ -102,15 +105,25 @@ pub async fn summaries(db: impl SqliteExecutor<'_>, study_id: i64) -> StoreResul
     .await
 }
 
-pub async fn get(db: impl SqliteExecutor<'_>, study_id: i64, well_id: i64) -> StoreResult<Option<WellRow>> {
-    sqlx::query_as("SELECT id, study_id, name, x, y, lat, lon, notes FROM wells WHERE study_id = ? AND id = ?")
-        .bind(study_id)
-        .bind(well_id)
-        .fetch_optional(db)
-        .await
+pub async fn get(
+    db: impl SqliteExecutor<'_>,
+    study_id: i64,
+    well_id: i64,
+) -> StoreResult<Option<WellRow>> {
+    sqlx::query_as(
+        "SELECT id, study_id, name, x, y, lat, lon, notes FROM wells WHERE study_id = ? AND id = ?",
+    )
+    .bind(study_id)
+    .bind(well_id)
+    .fetch_optional(db)
+    .await
 }
 
-pub async fn find_by_name(db: impl SqliteExecutor<'_>, study_id: i64, name: &str) -> StoreResult<Option<WellRow>> {
+pub async fn find_by_name(
+    db: impl SqliteExecutor<'_>,
+    study_id: i64,
+    name: &str,
+) -> StoreResult<Option<WellRow>> {
     sqlx::query_as("SELECT id, study_id, name, x, y, lat, lon, notes FROM wells WHERE study_id = ? AND name = ?")
         .bind(study_id)
         .bind(name)
@@ -133,7 +146,10 @@ pub async fn surfaces(db: impl SqliteExecutor<'_>, well_id: i64) -> StoreResult<
 }
 
 /// Every surface of a study, ordered by well then position: one query for batch analysis.
-pub async fn all_surfaces(db: impl SqliteExecutor<'_>, study_id: i64) -> StoreResult<Vec<SurfaceRow>> {
+pub async fn all_surfaces(
+    db: impl SqliteExecutor<'_>,
+    study_id: i64,
+) -> StoreResult<Vec<SurfaceRow>> {
     sqlx::query_as(
         "SELECT f.* FROM surfaces f JOIN wells w ON w.id = f.well_id
          WHERE w.study_id = ? ORDER BY f.well_id, f.position",
@@ -151,17 +167,22 @@ pub async fn existing_names(
 ) -> StoreResult<Vec<String>> {
     let mut found = Vec::new();
     for name in names {
-        let hit: Option<String> = sqlx::query_scalar("SELECT name FROM wells WHERE study_id = ? AND name = ?")
-            .bind(study_id)
-            .bind(name)
-            .fetch_optional(&mut *conn)
-            .await?;
+        let hit: Option<String> =
+            sqlx::query_scalar("SELECT name FROM wells WHERE study_id = ? AND name = ?")
+                .bind(study_id)
+                .bind(name)
+                .fetch_optional(&mut *conn)
+                .await?;
         found.extend(hit);
     }
     Ok(found)
 }
 
-pub async fn delete_by_name(conn: &mut SqliteConnection, study_id: i64, name: &str) -> StoreResult<()> {
+pub async fn delete_by_name(
+    conn: &mut SqliteConnection,
+    study_id: i64,
+    name: &str,
+) -> StoreResult<()> {
     sqlx::query("DELETE FROM wells WHERE study_id = ? AND name = ?")
         .bind(study_id)
         .bind(name)
@@ -177,12 +198,14 @@ pub async fn insert(
     name: &str,
     upload_id: Option<i64>,
 ) -> StoreResult<i64> {
-    sqlx::query_scalar("INSERT INTO wells (study_id, name, upload_id) VALUES (?, ?, ?) RETURNING id")
-        .bind(study_id)
-        .bind(name)
-        .bind(upload_id)
-        .fetch_one(db)
-        .await
+    sqlx::query_scalar(
+        "INSERT INTO wells (study_id, name, upload_id) VALUES (?, ?, ?) RETURNING id",
+    )
+    .bind(study_id)
+    .bind(name)
+    .bind(upload_id)
+    .fetch_one(db)
+    .await
 }
 
 /// Set a well's location and notes (from a wells file). Returns false if the well is unknown.
@@ -219,7 +242,11 @@ pub struct Location {
 const SURFACE_ROWS_PER_INSERT: usize = 500;
 
 /// Insert the surfaces of a well, shallowest first, in multi-row statements.
-pub async fn insert_surfaces(conn: &mut SqliteConnection, well_id: i64, surfaces: &[Surface]) -> StoreResult<()> {
+pub async fn insert_surfaces(
+    conn: &mut SqliteConnection,
+    well_id: i64,
+    surfaces: &[Surface],
+) -> StoreResult<()> {
     for (chunk_no, chunk) in surfaces.chunks(SURFACE_ROWS_PER_INSERT).enumerate() {
         let mut q = QueryBuilder::<Sqlite>::new(
             "INSERT INTO surfaces (well_id, position, horizon, depth_m, age_ma, lithology,

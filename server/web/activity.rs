@@ -32,7 +32,11 @@ pub struct ActivityView {
     pub entries: Vec<ActivityRow>,
 }
 
-async fn activity_view(state: &AppState, id: i64, filter: ActivityFilter) -> ApiResult<ActivityView> {
+async fn activity_view(
+    state: &AppState,
+    id: i64,
+    filter: ActivityFilter,
+) -> ApiResult<ActivityView> {
     let study = load_study(state, id).await?;
     let action = filter.action.filter(|a| !a.trim().is_empty());
     let limit = filter.limit.unwrap_or(500).clamp(1, 10_000);

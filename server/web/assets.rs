@@ -10,13 +10,22 @@ const APP_JS: &str = include_str!("../../static/app.js");
 
 pub fn routes() -> Router<super::AppState> {
     Router::new()
-        .route("/static/style.css", get(|| async { asset("text/css; charset=utf-8", STYLE_CSS) }))
-        .route("/static/app.js", get(|| async { asset("text/javascript; charset=utf-8", APP_JS) }))
+        .route(
+            "/static/style.css",
+            get(|| async { asset("text/css; charset=utf-8", STYLE_CSS) }),
+        )
+        .route(
+            "/static/app.js",
+            get(|| async { asset("text/javascript; charset=utf-8", APP_JS) }),
+        )
 }
 
 fn asset(content_type: &'static str, body: &'static str) -> impl IntoResponse {
     (
-        [(header::CONTENT_TYPE, content_type), (header::CACHE_CONTROL, "public, max-age=3600")],
+        [
+            (header::CONTENT_TYPE, content_type),
+            (header::CACHE_CONTROL, "public, max-age=3600"),
+        ],
         body,
     )
 }

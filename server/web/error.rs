@@ -25,7 +25,10 @@ pub enum AppError {
     Conflict(String),
     /// A save made against an old version of the thing; `current` is what is stored now.
     #[error("{message}")]
-    Stale { message: String, current: Option<serde_json::Value> },
+    Stale {
+        message: String,
+        current: Option<serde_json::Value>,
+    },
     /// The upload is larger than the server accepts.
     #[error("{0}")]
     TooLarge(String),
@@ -101,6 +104,9 @@ impl AppError {
         match self {
             AppError::Invalid(problems) => {
                 json!({ "error": self.public_message(), "problems": problems })
+            }
+            AppError::Stale { current, .. } => {
+                json!({ "error": self.public_message(), "current": current })
             }
             _ => json!({ "error": self.public_message() }),
         }

@@ -28,16 +28,43 @@ pub struct LiveEvent {
     pub summary: String,
 }
 
-/// The per-study broadcast channels.
-#[derive(Debug, Default)]
+/// The per-study broadcast channels, and a signal that ends every stream when the
+/// server stops (an open page must not hold the shutdown up).
+#[derive(Debug)]
 pub struct EventHub {
     channels: Mutex<HashMap<i64, broadcast::Sender<LiveEvent>>>,
+    closing: tokio::sync::watch::Sender<bool>,
+}
+
+impl Default for EventHub {
+    fn default() -> Self {
+        EventHub {
+            channels: Mutex::new(HashMap::new()),
+            closing: tokio::sync::watch::channel(false).0,
+        }
+    }
 }
 
 impl EventHub {
+    /// End every open stream (called when the server shuts down).
+    pub fn close(&self) {
+        self.closing.send_replace(true);
+    }
+
+    /// Completes once [`EventHub::close`] has been called.
+    fn closed(&self) -> impl std::future::Future<Output = ()> + Send + use<> {
+        let mut rx = self.closing.subscribe();
+        async move {
+            // An error means the hub is gone: nothing more will come either way.
+            let _ = rx.wait_for(|closing| *closing).await;
+        }
+    }
+
     fn sender(&self, study_id: i64) -> broadcast::Sender<LiveEvent> {
         let mut map = self.channels.lock().expect("event hub lock");
-        map.entry(study_id).or_insert_with(|| broadcast::channel(BACKLOG).0).clone()
+        map.entry(study_id)
+            .or_insert_with(|| broadcast::channel(BACKLOG).0)
+            .clone()
     }
 
     /// Tell every open page of the study. Nobody listening is fine.
@@ -56,12 +83,17 @@ pub async fn study_events(
     Path(id): Path<i64>,
 ) -> ApiResult<Sse<impl tokio_stream::Stream<Item = Result<Event, Infallible>>>> {
     super::studies::load_study(&state, id).await?;
+    let closed = state.events.closed();
     let stream = BroadcastStream::new(state.events.subscribe(id)).map(|item| {
         Ok(match item {
-            Ok(e) => Event::default().event("change").json_data(&e).unwrap_or_else(|_| Event::default().comment("unencodable")),
+            Ok(e) => Event::default()
+                .event("change")
+                .json_data(&e)
+                .unwrap_or_else(|_| Event::default().comment("unencodable")),
             // The reader fell behind and missed events: tell the page to reload.
             Err(_) => Event::default().event("missed").data("reload"),
         })
     });
+    let stream = futures_util::StreamExt::take_until(stream, closed);
     Ok(Sse::new(stream).keep_alive(KeepAlive::new().interval(Duration::from_secs(15))))
 }

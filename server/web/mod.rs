@@ -11,8 +11,8 @@ pub mod error;
 pub mod exports;
 pub mod live;
 pub mod pages;
-pub mod staging;
 pub mod review;
+pub mod staging;
 pub mod studies;
 pub mod upload;
 pub mod well_charts;
@@ -39,6 +39,8 @@ pub struct AppState {
     pub staging: Arc<staging::Staging>,
     /// Well analyses keyed by the content of their inputs.
     pub cache: Arc<crate::analysis::cache::AnalysisCache>,
+    /// Whole-study results per study revision, for repeated overviews.
+    pub study_memo: Arc<crate::services::results::StudyMemo>,
     /// Live change streams, one per study.
     pub events: Arc<live::EventHub>,
 }
@@ -50,6 +52,7 @@ impl AppState {
             staging: Arc::new(staging::Staging::default()),
             cache: Arc::new(crate::analysis::cache::AnalysisCache::default()),
             events: Arc::new(live::EventHub::default()),
+            study_memo: Arc::new(crate::services::results::StudyMemo::default()),
         }
     }
 }

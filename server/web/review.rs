@@ -1,11 +1,11 @@
 //! Picks, their states and the discussion thread of a well; each saved change is
 //! pushed to the study's live stream.
 
-use crate::services::accounts::SignedIn;
 use super::live::{self, LiveEvent};
 use super::wells::{PageMessage, render_well_page};
 use super::{ApiResult, AppError, AppState, PageResult};
 use crate::services::ServiceError;
+use crate::services::accounts::SignedIn;
 use crate::services::review::{self, PickEdit};
 use crate::store;
 use crate::store::wells::WellRow;
@@ -21,9 +21,18 @@ pub fn routes() -> Router<AppState> {
         .route("/studies/{id}/wells/{well_id}/picks", post(pick_form))
         .route("/studies/{id}/wells/{well_id}/comments", post(comment_form))
         .route("/api/studies/{id}/wells/{well_id}/review", get(review_json))
-        .route("/api/studies/{id}/wells/{well_id}/picks/{event}", put(pick_json))
-        .route("/api/studies/{id}/wells/{well_id}/picks/{event}/clear", post(clear_json))
-        .route("/api/studies/{id}/wells/{well_id}/comments", post(comment_json))
+        .route(
+            "/api/studies/{id}/wells/{well_id}/picks/{event}",
+            put(pick_json),
+        )
+        .route(
+            "/api/studies/{id}/wells/{well_id}/picks/{event}/clear",
+            post(clear_json),
+        )
+        .route(
+            "/api/studies/{id}/wells/{well_id}/comments",
+            post(comment_json),
+        )
         .route("/api/studies/{id}/events", get(live::study_events))
 }
 
@@ -34,10 +43,22 @@ async fn load_well(state: &AppState, study_id: i64, well_id: i64) -> Result<Well
         .ok_or_else(|| AppError::NotFound(format!("well {well_id} in study {study_id}")))
 }
 
-fn announce_pick(state: &AppState, well: &WellRow, saved_kind: &'static str, summary: String, by: &str) {
+fn announce_pick(
+    state: &AppState,
+    well: &WellRow,
+    saved_kind: &'static str,
+    summary: String,
+    by: &str,
+) {
     state.events.publish(
         well.study_id,
-        LiveEvent { kind: saved_kind, well_id: well.id, well: well.name.clone(), by: by.to_string(), summary },
+        LiveEvent {
+            kind: saved_kind,
+            well_id: well.id,
+            well: well.name.clone(),
+            by: by.to_string(),
+            summary,
+        },
     );
 }
 
@@ -75,7 +96,15 @@ async fn pick_form(
     let result = if form.action.as_deref() == Some("clear") {
         review::delete_pick(&state.db, &well, form.event, form.version, &user.name)
             .await
-            .map(|p| ("delete pick", format!("{} cleared the pick of rift event {} on {}", user.name, p.event, well.name)))
+            .map(|p| {
+                (
+                    "delete pick",
+                    format!(
+                        "{} cleared the pick of rift event {} on {}",
+                        user.name, p.event, well.name
+                    ),
+                )
+            })
     } else {
         let edit = PickEdit {
             event: form.event,
@@ -85,15 +114,22 @@ async fn pick_form(
             state: form.state,
             version: form.version,
         };
-        review::save_pick(&state.db, &well, &edit, &user.name).await.map(|s| {
-            (
-                "pick",
-                format!(
-                    "{} saved rift event {} on {}: {} → {} Ma, {}",
-                    user.name, s.pick.event, well.name, s.pick.rift_onset_ma, s.pick.rift_end_ma, s.pick.state
-                ),
-            )
-        })
+        review::save_pick(&state.db, &well, &edit, &user.name)
+            .await
+            .map(|s| {
+                (
+                    s.kind,
+                    format!(
+                        "{} saved rift event {} on {}: {} → {} Ma, {}",
+                        user.name,
+                        s.pick.event,
+                        well.name,
+                        s.pick.rift_onset_ma,
+                        s.pick.rift_end_ma,
+                        s.pick.state
+                    ),
+                )
+            })
     };
     match result {
         Ok((kind, summary)) => {
@@ -101,10 +137,26 @@ async fn pick_form(
             Ok(Redirect::to(&format!("/studies/{id}/wells/{well_id}#review")).into_response())
         }
         Err(ServiceError::Stale { message, .. }) => {
-            render_well_page(&state, id, well_id, None, Some(PageMessage::problem(message)), StatusCode::CONFLICT).await
+            render_well_page(
+                &state,
+                id,
+                well_id,
+                None,
+                Some(PageMessage::problem(message)),
+                StatusCode::CONFLICT,
+            )
+            .await
         }
         Err(ServiceError::Invalid(message)) => {
-            render_well_page(&state, id, well_id, None, Some(PageMessage::problem(message)), StatusCode::UNPROCESSABLE_ENTITY).await
+            render_well_page(
+                &state,
+                id,
+                well_id,
+                None,
+                Some(PageMessage::problem(message)),
+                StatusCode::UNPROCESSABLE_ENTITY,
+            )
+            .await
         }
         Err(e) => Err(AppError::from(e).into()),
     }
@@ -120,7 +172,10 @@ struct CommentForm {
 fn parse_event(raw: Option<&str>) -> Result<Option<i64>, AppError> {
     match raw.map(str::trim) {
         None | Some("") => Ok(None),
-        Some(v) => v.parse().map(Some).map_err(|_| AppError::Rejected(format!("'{v}' is not a rift event number."))),
+        Some(v) => v
+            .parse()
+            .map(Some)
+            .map_err(|_| AppError::Rejected(format!("'{v}' is not a rift event number."))),
     }
 }
 
@@ -136,12 +191,31 @@ async fn comment_form(
         Ok(c) => {
             state.events.publish(
                 id,
-                LiveEvent { kind: "comment", well_id, well: well.name.clone(), by: user.name.clone(), summary: format!("{} commented on {}: {}", c.author, well.name, shorten(&c.body)) },
+                LiveEvent {
+                    kind: "comment",
+                    well_id,
+                    well: well.name.clone(),
+                    by: user.name.clone(),
+                    summary: format!(
+                        "{} commented on {}: {}",
+                        c.author,
+                        well.name,
+                        shorten(&c.body)
+                    ),
+                },
             );
             Ok(Redirect::to(&format!("/studies/{id}/wells/{well_id}#discussion")).into_response())
         }
         Err(ServiceError::Invalid(message)) => {
-            render_well_page(&state, id, well_id, None, Some(PageMessage::problem(message)), StatusCode::UNPROCESSABLE_ENTITY).await
+            render_well_page(
+                &state,
+                id,
+                well_id,
+                None,
+                Some(PageMessage::problem(message)),
+                StatusCode::UNPROCESSABLE_ENTITY,
+            )
+            .await
         }
         Err(e) => Err(AppError::from(e).into()),
     }
@@ -149,7 +223,11 @@ async fn comment_form(
 
 fn shorten(text: &str) -> String {
     const MAX: usize = 80;
-    if text.chars().count() <= MAX { text.to_string() } else { format!("{}…", text.chars().take(MAX).collect::<String>()) }
+    if text.chars().count() <= MAX {
+        text.to_string()
+    } else {
+        format!("{}…", text.chars().take(MAX).collect::<String>())
+    }
 }
 
 /// The review part of a well: picks and comments.
@@ -159,7 +237,10 @@ pub struct ReviewView {
     pub comments: Vec<store::comments::CommentRow>,
 }
 
-async fn review_json(State(state): State<AppState>, Path((id, well_id)): Path<(i64, i64)>) -> ApiResult<Json<ReviewView>> {
+async fn review_json(
+    State(state): State<AppState>,
+    Path((id, well_id)): Path<(i64, i64)>,
+) -> ApiResult<Json<ReviewView>> {
     let well = load_well(&state, id, well_id).await?;
     Ok(Json(ReviewView {
         picks: store::picks::for_well(&state.db, well.id).await?,
@@ -188,14 +269,25 @@ async fn pick_json(
     Json(body): Json<PickBody>,
 ) -> ApiResult<Json<store::picks::PickRow>> {
     let well = load_well(&state, id, well_id).await?;
-    let edit = PickEdit { event, rift_onset_ma: body.rift_onset_ma, rift_end_ma: body.rift_end_ma, model: body.model, state: body.state, version: body.version };
+    let edit = PickEdit {
+        event,
+        rift_onset_ma: body.rift_onset_ma,
+        rift_end_ma: body.rift_end_ma,
+        model: body.model,
+        state: body.state,
+        version: body.version,
+    };
+    // A stale version answers 409 with the stored pick in `current` (AppError::Stale).
     let saved = review::save_pick(&state.db, &well, &edit, &user.name).await?;
     let p = &saved.pick;
     announce_pick(
         &state,
         &well,
-        "pick",
-        format!("{} saved rift event {} on {}: {} → {} Ma, {}", user.name, p.event, well.name, p.rift_onset_ma, p.rift_end_ma, p.state),
+        saved.kind,
+        format!(
+            "{} saved rift event {} on {}: {} → {} Ma, {}",
+            user.name, p.event, well.name, p.rift_onset_ma, p.rift_end_ma, p.state
+        ),
         &user.name,
     );
     Ok(Json(saved.pick))
@@ -214,7 +306,16 @@ async fn clear_json(
 ) -> ApiResult<Json<store::picks::PickRow>> {
     let well = load_well(&state, id, well_id).await?;
     let removed = review::delete_pick(&state.db, &well, event, body.version, &user.name).await?;
-    announce_pick(&state, &well, "delete pick", format!("{} cleared the pick of rift event {event} on {}", user.name, well.name), &user.name);
+    announce_pick(
+        &state,
+        &well,
+        "delete pick",
+        format!(
+            "{} cleared the pick of rift event {event} on {}",
+            user.name, well.name
+        ),
+        &user.name,
+    );
     Ok(Json(removed))
 }
 
@@ -235,7 +336,18 @@ async fn comment_json(
     let c = review::add_comment(&state.db, &well, body.pick_event, &body.body, &user.name).await?;
     state.events.publish(
         id,
-        LiveEvent { kind: "comment", well_id, well: well.name.clone(), by: user.name.clone(), summary: format!("{} commented on {}: {}", c.author, well.name, shorten(&c.body)) },
+        LiveEvent {
+            kind: "comment",
+            well_id,
+            well: well.name.clone(),
+            by: user.name.clone(),
+            summary: format!(
+                "{} commented on {}: {}",
+                c.author,
+                well.name,
+                shorten(&c.body)
+            ),
+        },
     );
     Ok((StatusCode::CREATED, Json(c)))
 }

@@ -30,7 +30,12 @@ pub struct StagedUpload {
 }
 
 impl StagedUpload {
-    pub fn new(study_id: i64, tops: Option<StagedFile>, wells: Option<StagedFile>, sea_level: Option<StagedFile>) -> Self {
+    pub fn new(
+        study_id: i64,
+        tops: Option<StagedFile>,
+        wells: Option<StagedFile>,
+        sea_level: Option<StagedFile>,
+    ) -> Self {
         StagedUpload {
             study_id,
             tops,
@@ -53,7 +58,10 @@ impl Staging {
         let mut map = self.uploads.lock().expect("staging lock");
         map.retain(|_, u| u.created.elapsed() < STAGING_TTL);
         while map.len() >= MAX_STAGED {
-            let oldest = map.iter().min_by_key(|(_, u)| u.created).map(|(k, _)| k.clone());
+            let oldest = map
+                .iter()
+                .min_by_key(|(_, u)| u.created)
+                .map(|(k, _)| k.clone());
             match oldest {
                 Some(k) => map.remove(&k),
                 None => break,

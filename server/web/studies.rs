@@ -3,13 +3,12 @@
 use super::exports::{self, ExportMeta};
 use super::pages::{StudiesPage, StudyPage};
 use super::{ApiResult, AppError, AppState, PageResult};
+use crate::analysis::contract::RiftEventOut;
 use crate::analysis::{self, StudyInputs};
 use crate::charts::{self, ChartSize, MapWell, RiftTimingData, RiftTimingWell, WellMapData};
 use crate::services::results::{self, WellResult};
-use crate::services::review;
 use crate::store;
 use crate::store::picks::PickRow;
-use std::collections::HashMap;
 use crate::store::studies::{StudyRow, StudySummary};
 use crate::store::uploads::UploadRow;
 use crate::store::wells::WellSummary;
@@ -19,6 +18,7 @@ use axum::response::{Html, Redirect, Response};
 use axum::routing::get;
 use axum::{Form, Json, Router};
 use serde::{Deserialize, Serialize};
+use std::collections::HashMap;
 
 pub fn routes() -> Router<AppState> {
     Router::new()
@@ -90,7 +90,10 @@ async fn create_study(state: &AppState, new: NewStudy, actor: &str) -> ApiResult
             "A study needs a name of 1 to 120 characters.".into(),
         ));
     }
-    if store::studies::find_by_name(&state.db, name).await?.is_some() {
+    if store::studies::find_by_name(&state.db, name)
+        .await?
+        .is_some()
+    {
         return Err(AppError::Conflict(format!(
             "A study named '{name}' already exists; choose another name."
         )));
@@ -137,6 +140,8 @@ pub struct OverviewRow {
     pub rms_misfit_m: Option<f64>,
     /// "proposed" or "team pick" when there is a fit.
     pub origin: Option<String>,
+    /// Each rift event of the fit (one or two).
+    pub rift_events: Vec<RiftEventOut>,
     /// The team's pick state (of rift event 1, or "draft/agreed/questioned" per event), if any.
     pub pick_state: Option<String>,
     /// Why there is no fit, or why the well could not be analysed.
@@ -161,8 +166,14 @@ pub struct StudyView {
 }
 
 fn overview_row(summary: &WellSummary, r: &WellResult, picks: &[&PickRow]) -> OverviewRow {
-    let out = r.outcome.as_ref().ok().map(|a| analysis::well_out(a));
-    let st = out.as_ref().and_then(|o| o.stretching.as_ref());
+    // Only the fit is needed here: skip building the full history of the contract.
+    let stretching = r
+        .outcome
+        .as_ref()
+        .ok()
+        .and_then(|a| a.interpretation.as_ref().ok())
+        .and_then(analysis::stretching_out);
+    let st = stretching.as_ref();
     OverviewRow {
         id: summary.id,
         name: summary.name.clone(),
@@ -179,39 +190,62 @@ fn overview_row(summary: &WellSummary, r: &WellResult, picks: &[&PickRow]) -> Ov
         delta: st.and_then(|s| s.two_layer.as_ref()).map(|t| t.delta),
         rms_misfit_m: st.map(|s| s.rms_misfit_m),
         origin: st.map(|s| s.origin.to_string()),
+        rift_events: st.map(|s| s.rift_events.clone()).unwrap_or_default(),
         pick_state: match picks {
             [] => None,
             [one] => Some(one.state.clone()),
-            many => Some(many.iter().map(|p| format!("event {}: {}", p.event, p.state)).collect::<Vec<_>>().join(", ")),
+            many => Some(
+                many.iter()
+                    .map(|p| format!("event {}: {}", p.event, p.state))
+                    .collect::<Vec<_>>()
+                    .join(", "),
+            ),
         },
         note: match &r.outcome {
             Err(e) => Some(format!("not analysed: {e}")),
-            Ok(_) => out.and_then(|o| o.fit_note),
+            Ok(a) => analysis::fit_note(a),
         },
     }
 }
 
 /// The analysis of every well, in the order of the well summaries (by name).
-async fn overview_rows(state: &AppState, id: i64, summaries: &[WellSummary]) -> ApiResult<(StudyInputs, Vec<OverviewRow>)> {
+async fn overview_rows(
+    state: &AppState,
+    id: i64,
+    summaries: &[WellSummary],
+) -> ApiResult<(StudyInputs, Vec<OverviewRow>)> {
     let picks = store::picks::for_study(&state.db, id).await?;
-    let timings = review::study_timings(&state.db, id).await?;
-    let (inputs, results) = results::study_results(&state.db, &state.cache, id, &timings).await?;
+    let mut picks_by_well: HashMap<i64, Vec<&PickRow>> = HashMap::new();
+    for p in &picks {
+        picks_by_well.entry(p.well_id).or_default().push(p);
+    }
+    let memo = results::study_results_memo(&state.db, &state.cache, &state.study_memo, id).await?;
+    let (inputs, results) = &*memo;
     let by_id: HashMap<i64, &WellResult> = results.iter().map(|r| (r.well.id, r)).collect();
     let rows = summaries
         .iter()
         .filter_map(|s| {
-            let mine: Vec<&PickRow> = picks.iter().filter(|p| p.well_id == s.id).collect();
-            by_id.get(&s.id).map(|r| overview_row(s, r, &mine))
+            let mine = picks_by_well
+                .get(&s.id)
+                .map(Vec::as_slice)
+                .unwrap_or_default();
+            by_id.get(&s.id).map(|r| overview_row(s, r, mine))
         })
         .collect();
-    Ok((inputs, rows))
+    Ok((inputs.clone(), rows))
 }
 
 fn overview_charts(study: &str, rows: &[OverviewRow]) -> OverviewCharts {
     let size = ChartSize::default();
     OverviewCharts {
         map: charts::well_map_chart(&map_data(study, rows), size),
-        rift_timing: charts::rift_timing_chart(&rift_timing_data(study, rows), ChartSize { width: 900, height: rift_chart_height(rows.len()) }),
+        rift_timing: charts::rift_timing_chart(
+            &rift_timing_data(study, rows),
+            ChartSize {
+                width: 900,
+                height: rift_chart_height(rows.len()),
+            },
+        ),
     }
 }
 
@@ -225,7 +259,12 @@ fn map_data(study: &str, rows: &[OverviewRow]) -> WellMapData {
         title: format!("Wells of {study} by stretching factor β"),
         wells: rows
             .iter()
-            .map(|r| MapWell { name: r.name.clone(), x_m: r.x.unwrap_or(f64::NAN), y_m: r.y.unwrap_or(f64::NAN), beta: r.beta })
+            .map(|r| MapWell {
+                name: r.name.clone(),
+                x_m: r.x.unwrap_or(f64::NAN),
+                y_m: r.y.unwrap_or(f64::NAN),
+                beta: r.beta,
+            })
             .collect(),
     }
 }
@@ -236,10 +275,23 @@ fn rift_timing_data(study: &str, rows: &[OverviewRow]) -> RiftTimingData {
         wells: rows
             .iter()
             .filter_map(|r| {
-                Some(RiftTimingWell { name: r.name.clone(), rift_onset_ma: r.rift_onset_ma?, rift_end_ma: r.rift_end_ma? })
+                let (first, later) = r.rift_events.split_first()?;
+                Some(RiftTimingWell {
+                    name: r.name.clone(),
+                    rift_onset_ma: first.rift_onset_ma,
+                    rift_end_ma: first.rift_end_ma,
+                    later_events: later
+                        .iter()
+                        .map(|e| (e.rift_onset_ma, e.rift_end_ma))
+                        .collect(),
+                })
             })
             .collect(),
-        wells_without_fit: rows.iter().filter(|r| r.beta.is_none()).map(|r| r.name.clone()).collect(),
+        wells_without_fit: rows
+            .iter()
+            .filter(|r| r.beta.is_none())
+            .map(|r| r.name.clone())
+            .collect(),
     }
 }
 
@@ -259,7 +311,10 @@ async fn study_view(state: &AppState, id: i64) -> ApiResult<StudyView> {
 
 /// Downloads of the overview: the wells table (CSV), the map and rift-timing charts
 /// (SVG), and the full analysis of every well (JSON).
-async fn study_download(State(state): State<AppState>, Path((id, file)): Path<(i64, String)>) -> ApiResult<Response> {
+async fn study_download(
+    State(state): State<AppState>,
+    Path((id, file)): Path<(i64, String)>,
+) -> ApiResult<Response> {
     let study = load_study(&state, id).await?;
     let summaries = store::wells::summaries(&state.db, id).await?;
     let (inputs, rows) = overview_rows(&state, id, &summaries).await?;
@@ -289,36 +344,89 @@ async fn study_download(State(state): State<AppState>, Path((id, file)): Path<(i
                     ]
                 })
                 .collect();
-            let header = ["well", "x_m", "y_m", "surfaces", "rift_onset_ma", "rift_end_ma", "beta", "beta_min", "beta_max", "delta", "rms_misfit_m", "timing", "pick_state", "note"];
-            exports::download("text/csv; charset=utf-8", &format!("{base}-wells.csv"), exports::csv_text(&meta, &format!("Wells of study {base}"), &header, &table))
+            let header = [
+                "well",
+                "x_m",
+                "y_m",
+                "surfaces",
+                "rift_onset_ma",
+                "rift_end_ma",
+                "beta",
+                "beta_min",
+                "beta_max",
+                "delta",
+                "rms_misfit_m",
+                "timing",
+                "pick_state",
+                "note",
+            ];
+            exports::download(
+                "text/csv; charset=utf-8",
+                &format!("{base}-wells.csv"),
+                exports::csv_text(&meta, &format!("Wells of study {base}"), &header, &table),
+            )
         }
-        "map.svg" => exports::download("image/svg+xml", &format!("{base}-map.svg"), meta.stamp_svg(&charts::well_map_chart(&map_data(&base, &rows), ChartSize::default()))),
+        "map.svg" => exports::download(
+            "image/svg+xml",
+            &format!("{base}-map.svg"),
+            meta.stamp_svg(&charts::well_map_chart(
+                &map_data(&base, &rows),
+                ChartSize::default(),
+            )),
+        ),
         "rift-timing.svg" => {
-            let size = ChartSize { width: 900, height: rift_chart_height(rows.len()) };
-            exports::download("image/svg+xml", &format!("{base}-rift-timing.svg"), meta.stamp_svg(&charts::rift_timing_chart(&rift_timing_data(&base, &rows), size)))
+            let size = ChartSize {
+                width: 900,
+                height: rift_chart_height(rows.len()),
+            };
+            exports::download(
+                "image/svg+xml",
+                &format!("{base}-rift-timing.svg"),
+                meta.stamp_svg(&charts::rift_timing_chart(
+                    &rift_timing_data(&base, &rows),
+                    size,
+                )),
+            )
         }
         "analysis.json" => {
-            let timings = review::study_timings(&state.db, id).await?;
-            let (inputs, results) = results::study_results(&state.db, &state.cache, id, &timings).await?;
+            let memo =
+                results::study_results_memo(&state.db, &state.cache, &state.study_memo, id).await?;
+            let (inputs, results) = &*memo;
             let wells: Vec<_> = results
                 .iter()
                 .map(|r| match &r.outcome {
                     Ok(a) => analysis::well_out(a),
-                    Err(e) => analysis::failed_well_out(&r.well.name, &crate::science::ScienceError::InvalidColumn { well: r.well.name.clone(), reason: e.clone() }),
+                    Err(e) => analysis::failed_well_out(
+                        &r.well.name,
+                        &crate::science::ScienceError::InvalidColumn {
+                            well: r.well.name.clone(),
+                            reason: e.clone(),
+                        },
+                    ),
                 })
                 .collect();
-            let body = serde_json::json!({ "export": meta, "parameters": analysis::parameters_out(&inputs), "wells": wells });
-            exports::download("application/json", &format!("{base}-analysis.json"), serde_json::to_string_pretty(&body).unwrap_or_default())
+            let body = serde_json::json!({ "export": meta, "parameters": analysis::parameters_out(inputs), "wells": wells });
+            exports::download(
+                "application/json",
+                &format!("{base}-analysis.json"),
+                serde_json::to_string_pretty(&body).unwrap_or_default(),
+            )
         }
         other => return Err(AppError::NotFound(format!("download '{other}'"))),
     })
 }
 
-async fn study_page(State(state): State<AppState>, Path(id): Path<i64>) -> PageResult<Html<String>> {
+async fn study_page(
+    State(state): State<AppState>,
+    Path(id): Path<i64>,
+) -> PageResult<Html<String>> {
     let view = study_view(&state, id).await?;
     Ok(Html(StudyPage { view }.render()?))
 }
 
-async fn study_json(State(state): State<AppState>, Path(id): Path<i64>) -> ApiResult<Json<StudyView>> {
+async fn study_json(
+    State(state): State<AppState>,
+    Path(id): Path<i64>,
+) -> ApiResult<Json<StudyView>> {
     Ok(Json(study_view(&state, id).await?))
 }

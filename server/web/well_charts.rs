@@ -2,8 +2,8 @@
 
 use crate::analysis::WellAnalysis;
 use crate::charts::{
-    BurialChartData, BurialHorizon, BurialUnit, BurialUnitStep, HeatFlowChartData, PhaseBand, SubsidenceChartData,
-    TectonicPoint, WaterDepthPoint,
+    BurialChartData, BurialHorizon, BurialUnit, BurialUnitStep, HeatFlowChartData, PhaseBand,
+    SubsidenceChartData, TectonicPoint, WaterDepthPoint,
 };
 
 fn phase_bands(a: &WellAnalysis) -> Vec<PhaseBand> {
@@ -13,7 +13,11 @@ fn phase_bands(a: &WellAnalysis) -> Vec<PhaseBand> {
             i.proposal
                 .intervals
                 .iter()
-                .map(|p| PhaseBand { name: p.phase.label().to_string(), from_ma: p.from_ma, to_ma: p.to_ma })
+                .map(|p| PhaseBand {
+                    name: p.phase.label().to_string(),
+                    from_ma: p.from_ma,
+                    to_ma: p.to_ma,
+                })
                 .collect()
         })
         .unwrap_or_default()
@@ -33,8 +37,15 @@ pub fn subsidence_data(well_name: &str, a: &WellAnalysis) -> SubsidenceChartData
                 max_m: s.tectonic_subsidence.max,
             })
             .collect(),
-        total: steps.iter().map(|s| (s.age_ma, s.total_subsidence_m)).collect(),
-        model_curve: a.interpretation.as_ref().map(|i| i.model_curve.clone()).unwrap_or_default(),
+        total: steps
+            .iter()
+            .map(|s| (s.age_ma, s.total_subsidence_m))
+            .collect(),
+        model_curve: a
+            .interpretation
+            .as_ref()
+            .map(|i| i.model_curve.clone())
+            .unwrap_or_default(),
         phases: phase_bands(a),
     }
 }
@@ -44,7 +55,14 @@ pub fn heat_flow_data(well_name: &str, a: &WellAnalysis) -> HeatFlowChartData {
     let i = a.interpretation.as_ref().ok();
     HeatFlowChartData {
         title: format!("Surface heat flow, well {well_name}"),
-        heat_flow: i.map(|i| i.heat_flow_grid.iter().map(|p| (p.age_ma, p.value)).collect()).unwrap_or_default(),
+        heat_flow: i
+            .map(|i| {
+                i.heat_flow_grid
+                    .iter()
+                    .map(|p| (p.age_ma, p.value))
+                    .collect()
+            })
+            .unwrap_or_default(),
         equilibrium_mw_m2: i.map(|i| i.equilibrium_heat_flow_mw_m2),
         phases: phase_bands(a),
     }
@@ -56,7 +74,11 @@ pub fn burial_data(well_name: &str, a: &WellAnalysis) -> BurialChartData {
     let horizons = (0..h.horizons.len())
         .map(|i| BurialHorizon {
             name: h.horizon(i).to_string(),
-            depths: h.steps.iter().filter_map(|s| s.horizon_depth_m(i).map(|d| (s.age_ma, d))).collect(),
+            depths: h
+                .steps
+                .iter()
+                .filter_map(|s| s.horizon_depth_m(i).map(|d| (s.age_ma, d)))
+                .collect(),
         })
         .filter(|b| !b.depths.is_empty())
         .collect();
@@ -64,8 +86,15 @@ pub fn burial_data(well_name: &str, a: &WellAnalysis) -> BurialChartData {
     let mut units: Vec<(usize, bool, BurialUnit)> = Vec::new();
     for s in &h.steps {
         for u in &s.units {
-            let step = BurialUnitStep { age_ma: s.age_ma, top_m: u.top_m, base_m: u.base_m };
-            match units.iter_mut().find(|(i, e, _)| *i == u.unit && *e == u.eroded_section) {
+            let step = BurialUnitStep {
+                age_ma: s.age_ma,
+                top_m: u.top_m,
+                base_m: u.base_m,
+            };
+            match units
+                .iter_mut()
+                .find(|(i, e, _)| *i == u.unit && *e == u.eroded_section)
+            {
                 Some((_, _, band)) => band.steps.push(step),
                 None => units.push((
                     u.unit,

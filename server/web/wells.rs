@@ -12,12 +12,12 @@ use crate::services::results::{self, WellResult};
 use crate::store;
 use crate::store::comments::CommentRow;
 use crate::store::picks::PickRow;
-use axum::extract::Query;
-use axum::http::StatusCode;
-use axum::response::IntoResponse;
 use crate::store::wells::{SurfaceRow, WellRow};
 use askama::Template;
+use axum::extract::Query;
 use axum::extract::{Path, State};
+use axum::http::StatusCode;
+use axum::response::IntoResponse;
 use axum::response::{Html, Response};
 use axum::routing::get;
 use axum::{Json, Router};
@@ -165,7 +165,12 @@ async fn well_result(
         Some(t) => Some(t),
         None => {
             let picks = store::picks::for_well(&state.db, well.id).await?;
-            (!picks.is_empty()).then(|| picks.iter().map(|p| (p.rift_onset_ma, p.rift_end_ma)).collect())
+            (!picks.is_empty()).then(|| {
+                picks
+                    .iter()
+                    .map(|p| (p.rift_onset_ma, p.rift_end_ma))
+                    .collect()
+            })
         }
     };
     let (inputs, result) =
@@ -173,14 +178,20 @@ async fn well_result(
     Ok((StudyInfo::from(&study), inputs, result))
 }
 
-async fn well_view(state: &AppState, study_id: i64, well_id: i64, trial: Option<&Trial>) -> ApiResult<WellView> {
+async fn well_view(
+    state: &AppState,
+    study_id: i64,
+    well_id: i64,
+    trial: Option<&Trial>,
+) -> ApiResult<WellView> {
     let (study, _inputs, r) = well_result(state, study_id, well_id, trial).await?;
     let picks = store::picks::for_well(&state.db, well_id).await?;
     let comments = store::comments::for_well(&state.db, well_id).await?;
     // The automatic proposal beside the team's pick (cached, so cheap when unchanged).
     let uses_timing = !picks.is_empty() || trial.and_then(Trial::timing).is_some();
     let proposal = if uses_timing {
-        let (_, p) = results::well_result(&state.db, &state.cache, study_id, r.well.clone(), None).await?;
+        let (_, p) =
+            results::well_result(&state.db, &state.cache, study_id, r.well.clone(), None).await?;
         p.outcome.ok().map(|a| ProposalView::of(&a))
     } else {
         r.outcome.as_ref().ok().map(|a| ProposalView::of(a))
@@ -280,7 +291,10 @@ pub struct PageMessage {
 
 impl PageMessage {
     pub fn problem(text: String) -> Self {
-        PageMessage { problem: true, text }
+        PageMessage {
+            problem: true,
+            text,
+        }
     }
 }
 

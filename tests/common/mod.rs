@@ -9,6 +9,7 @@
 //! Each test binary uses only some of these helpers, hence the `dead_code` allowance.
 #![allow(dead_code)]
 
+pub mod rift;
 pub mod tops;
 
 use reqwest::header::{CONTENT_TYPE, LOCATION};
@@ -41,6 +42,9 @@ pub struct TestApp {
     pub admin: Agent,
     /// The demo study's id when the app was started with it.
     pub demo_study: Option<i64>,
+    /// The state the server runs with (a clone: the same database, cache and live
+    /// streams), so tests can read e.g. `state.cache.stats()`.
+    pub state: sagline::web::AppState,
     server: JoinHandle<std::io::Result<()>>,
     // Dropped last: the database file lives here.
     _dir: TempDir,
@@ -148,7 +152,7 @@ impl TestApp {
         let state = sagline::web::AppState::new(pool.clone());
         let server = tokio::spawn(sagline::server::serve(
             listener,
-            state,
+            state.clone(),
             std::future::pending(),
         ));
         let mut admin = Agent::new(&base);
@@ -163,6 +167,7 @@ impl TestApp {
             pool,
             admin,
             demo_study,
+            state,
             server,
             _dir: dir,
         }

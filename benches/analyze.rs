@@ -1,0 +1,98 @@
+//! Speed of `sagline analyze` on an invented basin of 1,000 forward-modelled wells of
+//! 60 surfaces (60,000 tops rows), each with a rift: the analysis runs the phase
+//! search, the uniform and two-layer fits and 200 Monte-Carlo draws per well.
+//!
+//! - `sagline analyze` end to end: the release binary started as a process, reading
+//!   the tops file and writing the JSON report to a file. Target: under 5 s on a
+//!   2-core machine.
+//! - `analysis::analyse_wells` alone, on the same wells read from the same file: the
+//!   part of the end-to-end time that is the science.
+//!
+//! Few samples, since one run takes seconds.
+
+mod common;
+
+use common::{SURFACES_PER_WELL, WELLS, invented_basin_tops};
+use criterion::{Criterion, SamplingMode, Throughput, criterion_group, criterion_main};
+use sagline::analysis::{self, StudyInputs};
+use sagline::input::{self, TopsOptions};
+use sagline::science::lithology::Catalogue;
+use sagline::science::{ModelParameters, SeaLevelCurve};
+use std::path::Path;
+use std::process::Command;
+use std::time::Duration;
+
+/// Run the binary once on `tops`, writing the JSON report to `out`.
+fn run_analyze(tops: &Path, out: &Path) {
+    let result = Command::new(env!("CARGO_BIN_EXE_sagline"))
+        .arg("analyze")
+        .arg(tops)
+        .arg("--out")
+        .arg(out)
+        .output()
+        .expect("start the sagline binary");
+    assert!(
+        result.status.success(),
+        "sagline analyze failed: {}",
+        String::from_utf8_lossy(&result.stderr)
+    );
+}
+
+fn analyze(c: &mut Criterion) {
+    let dir = tempfile::tempdir().expect("temporary directory");
+    let tops_path = dir.path().join("tarrow_tops.csv");
+    let out_path = dir.path().join("tarrow_results.json");
+    let tops = invented_basin_tops(WELLS);
+    std::fs::write(&tops_path, &tops).expect("write the tops file");
+
+    // Once before timing: every well is analysed and fitted.
+    run_analyze(&tops_path, &out_path);
+    let report: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(&out_path).expect("the report file"))
+            .expect("the report is JSON");
+    let wells = report["wells"].as_array().expect("wells array");
+    assert_eq!(wells.len(), WELLS);
+    let fitted = wells.iter().filter(|w| w["stretching"].is_object()).count();
+    eprintln!("analyze: {fitted} of {WELLS} wells have a stretching fit");
+
+    let mut group = c.benchmark_group("analyze");
+    group
+        .sample_size(10)
+        .sampling_mode(SamplingMode::Flat)
+        .warm_up_time(Duration::from_secs(1))
+        .measurement_time(Duration::from_secs(40))
+        .throughput(Throughput::Elements(WELLS as u64));
+    group.bench_function(
+        "sagline analyze, 1,000 wells x 60 surfaces, JSON to a file",
+        |b| b.iter(|| run_analyze(&tops_path, &out_path)),
+    );
+
+    // The same wells, read as the command reads them, analysed in-process.
+    let catalogue = Catalogue::published_defaults();
+    let names: Vec<String> = catalogue
+        .lithologies()
+        .iter()
+        .map(|l| l.name.clone())
+        .collect();
+    let spelling = |n: &str| names.iter().find(|c| c.eq_ignore_ascii_case(n)).cloned();
+    let parsed =
+        input::parse_tops_with_catalogue(tops.as_bytes(), &TopsOptions::default(), &spelling)
+            .expect("the invented tops file is valid");
+    assert_eq!(parsed.rows, WELLS * SURFACES_PER_WELL);
+    let inputs = StudyInputs {
+        params: ModelParameters::default(),
+        catalogue: catalogue.clone(),
+        sea_level: SeaLevelCurve::default(),
+    };
+    group.bench_function("analysis::analyse_wells, 1,000 wells x 60 surfaces", |b| {
+        b.iter(|| {
+            let results = analysis::analyse_wells(&parsed.wells, &inputs, &|_| None, &|| {});
+            assert!(results.iter().all(Result::is_ok));
+            results
+        })
+    });
+    group.finish();
+}
+
+criterion_group!(benches, analyze);
+criterion_main!(benches);
