@@ -36,6 +36,9 @@ pub struct AnalyzeArgs {
     /// The team's rift picks (CSV: well, rift_onset_ma, rift_end_ma), used instead of the proposal.
     #[arg(long)]
     pub picks: Option<PathBuf>,
+    /// Only decompact and backstrip: leave `phases` empty and `stretching` null (faster).
+    #[arg(long, conflicts_with = "picks")]
+    pub backstrip_only: bool,
     #[arg(long, value_enum, default_value = "json")]
     pub format: OutputFormat,
     /// Write the output here instead of standard output.
@@ -220,9 +223,11 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
         .iter()
         .find(|p| !tops.wells.iter().any(|w| w.name == p.well))
     {
+        let picks_file = args.picks.as_deref().map(file_name).unwrap_or_default();
         return Err(BatchError(format!(
-            "picks: well '{}' is not in the tops file",
-            unknown.well
+            "{picks_file}, column well: well '{}' is not in the tops file {}",
+            unknown.well,
+            file_name(&args.tops)
         )));
     }
 
@@ -243,7 +248,11 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
             .find(|p| p.well == well)
             .map(|p| vec![(p.rift_onset_ma, p.rift_end_ma)])
     };
-    let results = analysis::analyse_wells(&tops.wells, &inputs, &timing, &tick);
+    let results = if args.backstrip_only {
+        analysis::backstrip_wells(&tops.wells, &inputs, &tick)
+    } else {
+        analysis::analyse_wells(&tops.wells, &inputs, &timing, &tick)
+    };
     if let Some(b) = bar {
         b.finish_and_clear();
     }

@@ -137,3 +137,21 @@ function wireChartClicks() {
   });
 }
 wireChartClicks();
+
+// "Try without saving": go to the page with just the trial ages, so the form's
+// other fields (its CSRF token among them) stay out of the address bar.
+document.addEventListener("click", (ev) => {
+  const button = ev.target.closest && ev.target.closest('button[name="preview"]');
+  if (!button) return;
+  const form = button.form;
+  const onset = form.querySelector('[name="rift_onset_ma"]').value;
+  const end = form.querySelector('[name="rift_end_ma"]').value;
+  if (!onset || !end) return;
+  ev.preventDefault();
+  const url = new URL(window.location.href);
+  url.search = "";
+  url.searchParams.set("trial_onset_ma", onset);
+  url.searchParams.set("trial_end_ma", end);
+  url.hash = "review";
+  window.location.href = url.toString();
+});

@@ -187,6 +187,30 @@ pub fn analyse_wells(
         .collect()
 }
 
+/// Why a well has no fit when only backstripping was asked for.
+pub const FITS_NOT_REQUESTED: &str = "fits not requested (backstripping only)";
+
+/// Backstrip many wells on all cores without fitting stretching models: the history
+/// alone, for quick checks of large well sets. Results keep the input order.
+pub fn backstrip_wells(
+    wells: &[WellColumn],
+    inputs: &StudyInputs,
+    progress: &(dyn Fn() + Sync),
+) -> Vec<Result<WellAnalysis, ScienceError>> {
+    wells
+        .par_iter()
+        .map(|w| {
+            let r = backstrip::backstrip(w, &inputs.catalogue, &inputs.params, &inputs.sea_level)
+                .map(|history| WellAnalysis {
+                    history,
+                    interpretation: Err(FITS_NOT_REQUESTED.into()),
+                });
+            progress();
+            r
+        })
+        .collect()
+}
+
 /// The `parameters` object of the contract: everything as used.
 pub fn parameters_out(inputs: &StudyInputs) -> ParametersOut {
     ParametersOut {
