@@ -13,6 +13,8 @@ use std::time::{Duration, Instant};
 const WELLS: usize = 2_000;
 const SURFACES_PER_WELL: usize = 50;
 const ROWS: usize = WELLS * SURFACES_PER_WELL;
+const ADMIN_NAME: &str = "bench-admin";
+const ADMIN_PASSWORD: &str = "basalt-quarry-58-bench";
 
 /// The invented file: wells `Tamsin-0001`… with surfaces 25–95 m apart and 1.5 Myr
 /// apart, lithologies cycling through a name, a mix and another case of a name,
@@ -52,9 +54,12 @@ fn invented_tops() -> Vec<u8> {
     csv.into_bytes()
 }
 
-/// A server on a fresh database with one empty study; dropped after one import.
+/// A server on a fresh database with one empty study and a signed-in admin client;
+/// dropped after one import.
 struct FreshServer {
     url: String,
+    client: reqwest::Client,
+    csrf: String,
     server: tokio::task::JoinHandle<std::io::Result<()>>,
     _dir: tempfile::TempDir,
 }
@@ -65,24 +70,59 @@ impl FreshServer {
         let pool = sagline::store::open(&dir.path().join("bench.db"))
             .await
             .expect("open the database");
+        sagline::services::accounts::create_user(
+            &pool,
+            ADMIN_NAME,
+            sagline::auth::Role::Admin,
+            Some(ADMIN_PASSWORD),
+            "bench setup",
+        )
+        .await
+        .expect("create the admin");
         let study = sagline::services::create_study(&pool, "Tamsin Basin (bench)", "", "bench")
             .await
             .expect("create the study");
         let listener = tokio::net::TcpListener::bind("127.0.0.1:0")
             .await
             .expect("bind port 0");
-        let url = format!(
-            "http://{}/api/studies/{study}/tops",
-            listener.local_addr().expect("address")
-        );
+        let base = format!("http://{}", listener.local_addr().expect("address"));
+        let url = format!("{base}/api/studies/{study}/tops");
         let state = sagline::web::AppState::new(pool);
         let server = tokio::spawn(sagline::server::serve(
             listener,
             state,
             std::future::pending(),
         ));
+        // Sign in outside the timed part: the session cookie and its CSRF token.
+        let client = reqwest::Client::builder()
+            .no_proxy()
+            .cookie_store(true)
+            .redirect(reqwest::redirect::Policy::none())
+            .build()
+            .expect("HTTP client");
+        client
+            .post(format!("{base}/login"))
+            .header("content-type", "application/x-www-form-urlencoded")
+            .body(format!("name={ADMIN_NAME}&password={ADMIN_PASSWORD}"))
+            .send()
+            .await
+            .expect("sign in");
+        let session: serde_json::Value = client
+            .get(format!("{base}/api/session"))
+            .send()
+            .await
+            .expect("GET /api/session")
+            .json()
+            .await
+            .expect("session JSON");
+        let csrf = session["csrf_token"]
+            .as_str()
+            .expect("csrf_token")
+            .to_string();
         FreshServer {
             url,
+            client,
+            csrf,
             server,
             _dir: dir,
         }
@@ -98,10 +138,6 @@ impl Drop for FreshServer {
 fn import(c: &mut Criterion) {
     let tops = invented_tops();
     let runtime = tokio::runtime::Runtime::new().expect("tokio runtime");
-    let client = reqwest::Client::builder()
-        .no_proxy()
-        .build()
-        .expect("HTTP client");
 
     let mut group = c.benchmark_group("import");
     group
@@ -118,8 +154,10 @@ fn import(c: &mut Criterion) {
                     let server = FreshServer::start().await;
                     let part = Part::bytes(tops.clone()).file_name("tamsin_tops.csv");
                     let started = Instant::now();
-                    let response = client
+                    let response = server
+                        .client
                         .post(&server.url)
+                        .header("X-CSRF-Token", &server.csrf)
                         .multipart(Form::new().part("tops", part))
                         .send()
                         .await
