@@ -258,6 +258,11 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
     }
     let report = analysis::report(&tops.wells, &results, &inputs);
     let output = render(&report, args.format)?;
+    // The process ends right after writing: let the OS reclaim the analysis (freeing
+    // millions of small allocations one by one would take a noticeable part of a large run).
+    std::mem::forget(report);
+    std::mem::forget(results);
+    std::mem::forget(tops);
     match &args.out {
         Some(path) => std::fs::write(path, output)
             .map_err(|e| BatchError(format!("cannot write {}: {e}", path.display()))),
@@ -285,12 +290,21 @@ fn progress_bar(wells: usize) -> Option<indicatif::ProgressBar> {
     Some(bar)
 }
 
+/// Above this many wells the JSON is written compact rather than indented.
+pub const INDENTED_JSON_MAX_WELLS: usize = 100;
+
 /// The whole output in memory, so that a failure prints nothing partial.
 pub fn render(report: &Report, format: OutputFormat) -> Result<Vec<u8>, BatchError> {
     match format {
         OutputFormat::Json => {
-            let mut v = serde_json::to_vec_pretty(report)
-                .map_err(|e| BatchError(format!("cannot write JSON: {e}")))?;
+            // Indented for reading when the set is small; compact (same content) when it is
+            // large, where indentation would double the size of the file.
+            let written = if report.wells.len() <= INDENTED_JSON_MAX_WELLS {
+                serde_json::to_vec_pretty(report)
+            } else {
+                serde_json::to_vec(report)
+            };
+            let mut v = written.map_err(|e| BatchError(format!("cannot write JSON: {e}")))?;
             v.push(b'\n');
             Ok(v)
         }
