@@ -50,8 +50,9 @@ fn invented_well() -> WellColumn {
                     eroded_at_ma: 73.0,
                 }),
             };
-            // A hiatus below surface 20; otherwise 40-160 m per unit.
-            if i != 20 {
+            // A hiatus below surface 20 and the erosional unconformity between 29 and 30
+            // (two surfaces at one depth each); otherwise 40-160 m per unit.
+            if i != 20 && i != 29 {
                 depth += 40.0 + (i * 37 % 120) as f64;
             }
             surface

@@ -1,8 +1,8 @@
 //! Which of a file's headers is which of our columns: matching by name (any case,
 //! any order), the user's own mapping for odd headers, and depth units.
 
-use super::problems::Problems;
-use super::table::{Row, parse_number};
+use super::problems::{InputProblem, Problems};
+use super::table::{Row, Table, parse_number, read_table};
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
@@ -219,6 +219,36 @@ impl Columns {
     /// Match `headers` (on `header_line`) to `kind`'s columns, recording header
     /// problems: mapping mistakes, a column given twice, a required column missing,
     /// a column without its partner, and two ways of saying one thing.
+    /// Read a file's table and match its headers, for a parser that goes on to read the
+    /// rows. Stops with every problem found so far when the file cannot be read as CSV,
+    /// its headers do not fit `kind`, or it has no data rows.
+    pub(crate) fn open(
+        bytes: &[u8],
+        kind: FileKind,
+        mapping: &ColumnMapping,
+        mut problems: Problems,
+    ) -> Result<(Table, Columns, Problems), Vec<InputProblem>> {
+        let Some(table) = read_table(bytes, &mut problems) else {
+            return Err(problems.finish());
+        };
+        let before = problems.count();
+        let columns = Columns::resolve(
+            kind,
+            &table.headers,
+            table.header_line,
+            mapping,
+            &mut problems,
+        );
+        if problems.count() > before {
+            return Err(problems.finish());
+        }
+        if table.rows.is_empty() {
+            problems.whole_file("the file has a header but no data rows");
+            return Err(problems.finish());
+        }
+        Ok((table, columns, problems))
+    }
+
     pub(crate) fn resolve(
         kind: FileKind,
         headers: &[String],

@@ -3,7 +3,6 @@
 
 use super::columns::{ColumnMapping, Columns, FileKind};
 use super::problems::{InputProblem, Problems};
-use super::table::read_table;
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
 use std::collections::hash_map::Entry;
@@ -19,25 +18,12 @@ pub struct RiftPick {
 /// Read a picks file: `well`, `rift_onset_ma`, `rift_end_ma`, one row per well;
 /// both ages not negative and the onset older than the end. Other columns are ignored.
 pub fn parse_picks(bytes: &[u8]) -> Result<Vec<RiftPick>, Vec<InputProblem>> {
-    let mut problems = Problems::new(FileKind::Picks.default_file_name());
-    let Some(table) = read_table(bytes, &mut problems) else {
-        return Err(problems.finish());
-    };
-    let before = problems.count();
-    let columns = Columns::resolve(
+    let (table, columns, mut problems) = Columns::open(
+        bytes,
         FileKind::Picks,
-        &table.headers,
-        table.header_line,
         &ColumnMapping::new(),
-        &mut problems,
-    );
-    if problems.count() > before {
-        return Err(problems.finish());
-    }
-    if table.rows.is_empty() {
-        problems.whole_file("the file has a header but no data rows");
-        return Err(problems.finish());
-    }
+        Problems::new(FileKind::Picks.default_file_name()),
+    )?;
     let (well, onset, end) = (
         columns.field("well"),
         columns.field("rift_onset_ma"),

@@ -2,32 +2,18 @@
 
 use super::columns::{ColumnMapping, Columns, FileKind};
 use super::problems::{InputProblem, Problems};
-use super::table::read_table;
 use crate::science::{SeaLevelCurve, SeaLevelPoint};
 
 /// Read a sea-level file: `age_ma` (not negative) and `sea_level_m` (above present,
 /// m). Two points at one age, and numbers that are not finite, are refused.
 /// Other columns are ignored ([`super::preview`] lists them).
 pub fn parse_sea_level(bytes: &[u8]) -> Result<SeaLevelCurve, Vec<InputProblem>> {
-    let mut problems = Problems::new(FileKind::SeaLevel.default_file_name());
-    let Some(table) = read_table(bytes, &mut problems) else {
-        return Err(problems.finish());
-    };
-    let before = problems.count();
-    let columns = Columns::resolve(
+    let (table, columns, mut problems) = Columns::open(
+        bytes,
         FileKind::SeaLevel,
-        &table.headers,
-        table.header_line,
         &ColumnMapping::new(),
-        &mut problems,
-    );
-    if problems.count() > before {
-        return Err(problems.finish());
-    }
-    if table.rows.is_empty() {
-        problems.whole_file("the file has a header but no data rows");
-        return Err(problems.finish());
-    }
+        Problems::new(FileKind::SeaLevel.default_file_name()),
+    )?;
     let (age, level) = (columns.field("age_ma"), columns.field("sea_level_m"));
     let mut points: Vec<(SeaLevelPoint, usize)> = Vec::with_capacity(table.rows.len());
     for row in table.rows.iter().filter(|r| r.complete) {

@@ -3,7 +3,7 @@
 use super::columns::{ColumnMapping, Columns, DepthUnit, Field, FileKind};
 use super::lithology::LithologyNames;
 use super::problems::{InputProblem, Problems};
-use super::table::{Row, read_table};
+use super::table::Row;
 use crate::science::{Erosion, LithologyMix, Surface, WaterDepth, WellColumn};
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
@@ -57,25 +57,8 @@ pub fn parse_tops_with_catalogue(
         .file_name
         .as_deref()
         .unwrap_or(FileKind::Tops.default_file_name());
-    let mut problems = Problems::new(file);
-    let Some(table) = read_table(bytes, &mut problems) else {
-        return Err(problems.finish());
-    };
-    let before = problems.count();
-    let columns = Columns::resolve(
-        FileKind::Tops,
-        &table.headers,
-        table.header_line,
-        &options.mapping,
-        &mut problems,
-    );
-    if problems.count() > before {
-        return Err(problems.finish());
-    }
-    if table.rows.is_empty() {
-        problems.whole_file("the file has a header but no data rows");
-        return Err(problems.finish());
-    }
+    let (table, columns, mut problems) =
+        Columns::open(bytes, FileKind::Tops, &options.mapping, Problems::new(file))?;
     let fields = TopsFields::new(&columns);
     let detected = if fields.depth_in_feet {
         DepthUnit::Feet

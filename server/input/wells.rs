@@ -2,7 +2,6 @@
 
 use super::columns::{ColumnMapping, Columns, FileKind};
 use super::problems::{InputProblem, Problems};
-use super::table::read_table;
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
 use std::collections::hash_map::Entry;
@@ -51,25 +50,12 @@ pub fn parse_wells(bytes: &[u8], options: &WellsOptions) -> Result<ParsedWells, 
         .file_name
         .as_deref()
         .unwrap_or(FileKind::Wells.default_file_name());
-    let mut problems = Problems::new(file);
-    let Some(table) = read_table(bytes, &mut problems) else {
-        return Err(problems.finish());
-    };
-    let before = problems.count();
-    let columns = Columns::resolve(
+    let (table, columns, mut problems) = Columns::open(
+        bytes,
         FileKind::Wells,
-        &table.headers,
-        table.header_line,
         &options.mapping,
-        &mut problems,
-    );
-    if problems.count() > before {
-        return Err(problems.finish());
-    }
-    if table.rows.is_empty() {
-        problems.whole_file("the file has a header but no data rows");
-        return Err(problems.finish());
-    }
+        Problems::new(file),
+    )?;
     let well = columns.field("well");
     let (x, y, lat, lon) = (
         columns.field("x"),

@@ -252,7 +252,7 @@ fn push_unit(
 pub(crate) mod tests {
     use super::*;
     use crate::science::column::{LithologyMix, MixPart, Surface, WaterDepth};
-    use crate::science::tolerance::assert_printed;
+    use crate::science::tolerance::{DEPTH_SOLVE_M, assert_printed};
     use proptest::prelude::*;
 
     fn surface(horizon: &str, depth_m: f64, age_ma: f64, below: Option<&str>) -> Surface {
@@ -475,11 +475,14 @@ pub(crate) mod tests {
                     // constant (to the depth-solve tolerance: today's column is measured,
                     // older ones are solved).
                     let (younger, older) = (step_of(k), step_of(k + 1));
+                    let solve_slack = well.surfaces.len() as f64 * DEPTH_SOLVE_M;
                     prop_assert!(
-                        (younger.sediment_thickness_m - older.sediment_thickness_m).abs() < 1e-6
+                        (younger.sediment_thickness_m - older.sediment_thickness_m).abs() < solve_slack
                     );
                     for (a, b) in younger.units.iter().skip(1).zip(&older.units) {
-                        prop_assert!((a.mean_porosity - b.mean_porosity).abs() < 1e-9);
+                        // A thickness within the solve tolerance moves the mean porosity
+                        // by far less than 1e-6.
+                        prop_assert!((a.mean_porosity - b.mean_porosity).abs() < 1e-6);
                     }
                 }
             }

@@ -42,8 +42,8 @@ fn pore_thickness(lithology: &Lithology, top_m: f64, base_m: f64) -> f64 {
 /// Solved by Newton's method from the upper bound `Hs / (1 - phi(top))`. The function
 /// `f(T) = T - (phi(top)/c)(1 - exp(-c T)) - Hs` is increasing and convex, so Newton from
 /// the right never overshoots; a bisection step on the bracket `[Hs, upper bound]` guards
-/// against rounding all the same. Converged to [`DEPTH_SOLVE_M`] (tighter than the 1e-6 m
-/// SCIENCE.md 2.2 asks for). Exact special cases: phi0 = 0 gives `Hs`; c = 0 gives
+/// against rounding all the same. Converged to [`DEPTH_SOLVE_M`] (1e-6 m, as
+/// SCIENCE.md 2.2 asks). Exact special cases: phi0 = 0 gives `Hs`; c = 0 gives
 /// `Hs / (1 - phi0)`.
 ///
 /// Errors: [`ScienceError::OutOfRange`] for a negative or non-finite top or solid thickness;
@@ -383,7 +383,8 @@ mod tests {
         ) {
             let cold = decompacted_thickness(&l, top, solid).unwrap();
             let warm = decompacted_thickness_from(&l, top, solid, start).unwrap();
-            prop_assert!((cold - warm).abs() < 1e-8, "cold {cold}, warm {warm}");
+            // Both solves stop within the solve tolerance of the root.
+            prop_assert!((cold - warm).abs() < 2.0 * DEPTH_SOLVE_M, "cold {cold}, warm {warm}");
         }
 
         #[test]

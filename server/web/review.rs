@@ -6,8 +6,9 @@ use super::wells::{PageMessage, render_well_page};
 use super::{ApiResult, AppError, AppState, PageResult};
 use crate::services::ServiceError;
 use crate::services::accounts::SignedIn;
-use crate::services::review::{self, PickEdit};
+use crate::services::review::{self, PickEdit, SavedPick};
 use crate::store;
+use crate::store::comments::CommentRow;
 use crate::store::wells::WellRow;
 use axum::extract::{Path, State};
 use axum::http::StatusCode;
@@ -43,23 +44,68 @@ async fn load_well(state: &AppState, study_id: i64, well_id: i64) -> Result<Well
         .ok_or_else(|| AppError::NotFound(format!("well {well_id} in study {study_id}")))
 }
 
-fn announce_pick(
-    state: &AppState,
-    well: &WellRow,
-    saved_kind: &'static str,
-    summary: String,
-    by: &str,
-) {
+/// Tell the study's open pages about a change.
+fn announce(state: &AppState, well: &WellRow, kind: &'static str, by: &str, summary: String) {
     state.events.publish(
         well.study_id,
         LiveEvent {
-            kind: saved_kind,
+            kind,
             well_id: well.id,
             well: well.name.clone(),
             by: by.to_string(),
             summary,
         },
     );
+}
+
+fn announce_saved(state: &AppState, well: &WellRow, saved: &SavedPick, by: &str) {
+    let p = &saved.pick;
+    let summary = format!(
+        "{by} saved rift event {} on {}: {} → {} Ma, {}",
+        p.event, well.name, p.rift_onset_ma, p.rift_end_ma, p.state
+    );
+    announce(state, well, saved.kind, by, summary);
+}
+
+fn announce_cleared(state: &AppState, well: &WellRow, event: i64, by: &str) {
+    let summary = format!(
+        "{by} cleared the pick of rift event {event} on {}",
+        well.name
+    );
+    announce(state, well, "delete pick", by, summary);
+}
+
+fn announce_comment(state: &AppState, well: &WellRow, c: &CommentRow) {
+    let summary = format!(
+        "{} commented on {}: {}",
+        c.author,
+        well.name,
+        shorten(&c.body)
+    );
+    announce(state, well, "comment", &c.author, summary);
+}
+
+/// A refused change from a page form: the well page again, with the reason on top
+/// (409 for a stale version, 422 for an invalid value).
+async fn refused_on_page(
+    state: &AppState,
+    well: &WellRow,
+    error: ServiceError,
+) -> PageResult<Response> {
+    let (status, message) = match error {
+        ServiceError::Stale { message, .. } => (StatusCode::CONFLICT, message),
+        ServiceError::Invalid(message) => (StatusCode::UNPROCESSABLE_ENTITY, message),
+        other => return Err(AppError::from(other).into()),
+    };
+    render_well_page(
+        state,
+        well.study_id,
+        well.id,
+        None,
+        Some(PageMessage::problem(message)),
+        status,
+    )
+    .await
 }
 
 /// The pick form of the well page: `action` is `save` (default) or `clear`.
@@ -93,18 +139,10 @@ async fn pick_form(
     Form(form): Form<PickForm>,
 ) -> PageResult<Response> {
     let well = load_well(&state, id, well_id).await?;
-    let result = if form.action.as_deref() == Some("clear") {
+    let outcome = if form.action.as_deref() == Some("clear") {
         review::delete_pick(&state.db, &well, form.event, form.version, &user.name)
             .await
-            .map(|p| {
-                (
-                    "delete pick",
-                    format!(
-                        "{} cleared the pick of rift event {} on {}",
-                        user.name, p.event, well.name
-                    ),
-                )
-            })
+            .map(|p| announce_cleared(&state, &well, p.event, &user.name))
     } else {
         let edit = PickEdit {
             event: form.event,
@@ -116,49 +154,13 @@ async fn pick_form(
         };
         review::save_pick(&state.db, &well, &edit, &user.name)
             .await
-            .map(|s| {
-                (
-                    s.kind,
-                    format!(
-                        "{} saved rift event {} on {}: {} → {} Ma, {}",
-                        user.name,
-                        s.pick.event,
-                        well.name,
-                        s.pick.rift_onset_ma,
-                        s.pick.rift_end_ma,
-                        s.pick.state
-                    ),
-                )
-            })
+            .map(|saved| announce_saved(&state, &well, &saved, &user.name))
     };
-    match result {
-        Ok((kind, summary)) => {
-            announce_pick(&state, &well, kind, summary, &user.name);
+    match outcome {
+        Ok(()) => {
             Ok(Redirect::to(&format!("/studies/{id}/wells/{well_id}#review")).into_response())
         }
-        Err(ServiceError::Stale { message, .. }) => {
-            render_well_page(
-                &state,
-                id,
-                well_id,
-                None,
-                Some(PageMessage::problem(message)),
-                StatusCode::CONFLICT,
-            )
-            .await
-        }
-        Err(ServiceError::Invalid(message)) => {
-            render_well_page(
-                &state,
-                id,
-                well_id,
-                None,
-                Some(PageMessage::problem(message)),
-                StatusCode::UNPROCESSABLE_ENTITY,
-            )
-            .await
-        }
-        Err(e) => Err(AppError::from(e).into()),
+        Err(e) => refused_on_page(&state, &well, e).await,
     }
 }
 
@@ -189,35 +191,10 @@ async fn comment_form(
     let event = parse_event(form.pick_event.as_deref())?;
     match review::add_comment(&state.db, &well, event, &form.body, &user.name).await {
         Ok(c) => {
-            state.events.publish(
-                id,
-                LiveEvent {
-                    kind: "comment",
-                    well_id,
-                    well: well.name.clone(),
-                    by: user.name.clone(),
-                    summary: format!(
-                        "{} commented on {}: {}",
-                        c.author,
-                        well.name,
-                        shorten(&c.body)
-                    ),
-                },
-            );
+            announce_comment(&state, &well, &c);
             Ok(Redirect::to(&format!("/studies/{id}/wells/{well_id}#discussion")).into_response())
         }
-        Err(ServiceError::Invalid(message)) => {
-            render_well_page(
-                &state,
-                id,
-                well_id,
-                None,
-                Some(PageMessage::problem(message)),
-                StatusCode::UNPROCESSABLE_ENTITY,
-            )
-            .await
-        }
-        Err(e) => Err(AppError::from(e).into()),
+        Err(e) => refused_on_page(&state, &well, e).await,
     }
 }
 
@@ -279,17 +256,7 @@ async fn pick_json(
     };
     // A stale version answers 409 with the stored pick in `current` (AppError::Stale).
     let saved = review::save_pick(&state.db, &well, &edit, &user.name).await?;
-    let p = &saved.pick;
-    announce_pick(
-        &state,
-        &well,
-        saved.kind,
-        format!(
-            "{} saved rift event {} on {}: {} → {} Ma, {}",
-            user.name, p.event, well.name, p.rift_onset_ma, p.rift_end_ma, p.state
-        ),
-        &user.name,
-    );
+    announce_saved(&state, &well, &saved, &user.name);
     Ok(Json(saved.pick))
 }
 
@@ -306,16 +273,7 @@ async fn clear_json(
 ) -> ApiResult<Json<store::picks::PickRow>> {
     let well = load_well(&state, id, well_id).await?;
     let removed = review::delete_pick(&state.db, &well, event, body.version, &user.name).await?;
-    announce_pick(
-        &state,
-        &well,
-        "delete pick",
-        format!(
-            "{} cleared the pick of rift event {event} on {}",
-            user.name, well.name
-        ),
-        &user.name,
-    );
+    announce_cleared(&state, &well, event, &user.name);
     Ok(Json(removed))
 }
 
@@ -334,20 +292,6 @@ async fn comment_json(
 ) -> ApiResult<(StatusCode, Json<store::comments::CommentRow>)> {
     let well = load_well(&state, id, well_id).await?;
     let c = review::add_comment(&state.db, &well, body.pick_event, &body.body, &user.name).await?;
-    state.events.publish(
-        id,
-        LiveEvent {
-            kind: "comment",
-            well_id,
-            well: well.name.clone(),
-            by: user.name.clone(),
-            summary: format!(
-                "{} commented on {}: {}",
-                c.author,
-                well.name,
-                shorten(&c.body)
-            ),
-        },
-    );
+    announce_comment(&state, &well, &c);
     Ok((StatusCode::CREATED, Json(c)))
 }
