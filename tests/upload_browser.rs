@@ -137,8 +137,20 @@ async fn the_browser_preview_shows_problems_and_a_mapping_fixes_them() {
     assert_eq!(refused.status, StatusCode::UNPROCESSABLE_ENTITY);
     assert_eq!(app.database_content().await, before);
 
-    // An odd depth header: missing until the user picks its column in the preview.
-    let odd = VALID_TOPS.replacen("depth_m", "TVDSS", 1);
+    // A depth header named like a depth is offered as one, and the page says it guessed.
+    let guessable = VALID_TOPS.replacen("depth_m", "TVDSS", 1);
+    let path = stage_in_browser(&app, study, &guessable).await;
+    let page = app.get(&path).await;
+    assert_eq!(page.status, StatusCode::OK, "{}", page.body);
+    assert!(page.body.contains("matched by a guess"), "{}", page.body);
+    assert!(
+        page.body.contains("<option value=\"depth_m\" selected>"),
+        "the guess is shown selected in the read-as row: {}",
+        page.body
+    );
+
+    // A header that names nothing: missing until the user picks its column in the preview.
+    let odd = VALID_TOPS.replacen("depth_m", "Kote", 1);
     let path = stage_in_browser(&app, study, &odd).await;
     let page = app.get(&path).await;
     assert_eq!(page.status, StatusCode::UNPROCESSABLE_ENTITY);

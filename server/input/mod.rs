@@ -81,6 +81,7 @@
 //! ```
 
 mod columns;
+mod guess;
 mod lithology;
 mod picks;
 mod preview;
@@ -97,6 +98,7 @@ mod tops_tests;
 mod wells;
 
 pub use columns::{ColumnMapping, DepthUnit, FileKind, MatchedColumn};
+pub use guess::guess_mapping;
 pub use lithology::MIX_SUM_TOLERANCE_PERCENT;
 pub use picks::{RiftPick, parse_picks};
 pub use preview::{PREVIEW_ROWS, Preview, PreviewOptions, PreviewRow, preview};

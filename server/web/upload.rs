@@ -391,7 +391,10 @@ async fn preview_view(
         .get(token, id)
         // Read as "this upload not found": held uploads expire after an hour (staging.rs).
         .ok_or_else(|| AppError::NotFound("this upload".into()))?;
-    let options = upload_options(fields, Some(&staged))?;
+    // On the first view, offer a mapping guessed from the header names; the user sees
+    // it in the "read as" row and nothing is stored until they confirm.
+    let (fields, guessed) = with_guessed_mapping(fields, &staged);
+    let options = upload_options(&fields, Some(&staged))?;
     let mut files = Vec::new();
     for (field, kind) in FILE_FIELDS {
         let (file, mapping, label) = match kind {
@@ -459,6 +462,13 @@ async fn preview_view(
             Err(AppError::Invalid(problems)) => (problems, Vec::new(), Vec::new(), Vec::new()),
             Err(e) => return Err(e),
         };
+    let mut notes = notes;
+    if guessed {
+        notes.insert(
+            0,
+            "Some columns were matched by a guess from their names: check the \"read as\" row before storing.".into(),
+        );
+    }
     Ok(PreviewView {
         study: StudyInfo::from(&study),
         token: token.to_string(),
@@ -494,6 +504,41 @@ async fn preview_json(
     Query(fields): Query<HashMap<String, String>>,
 ) -> ApiResult<Json<PreviewView>> {
     Ok(Json(preview_view(&state, id, &token, &fields).await?))
+}
+
+/// The form fields with a guessed `<file>_col_<index>` mapping added, when the user has
+/// not chosen one yet; and whether anything was guessed.
+fn with_guessed_mapping(
+    fields: &HashMap<String, String>,
+    staged: &StagedUpload,
+) -> (HashMap<String, String>, bool) {
+    let mut fields = fields.clone();
+    if fields.keys().any(|k| k.contains("_col_")) {
+        return (fields, false);
+    }
+    let mut guessed = false;
+    for (prefix, kind, file) in [
+        ("tops", FileKind::Tops, staged.tops.as_ref()),
+        ("wells", FileKind::Wells, staged.wells.as_ref()),
+    ] {
+        let Some(file) = file else { continue };
+        let Ok(p) = input::preview(
+            &file.bytes,
+            &PreviewOptions {
+                rows: 0,
+                ..PreviewOptions::new(kind)
+            },
+        ) else {
+            continue;
+        };
+        for (header, column) in input::guess_mapping(kind, &p.headers) {
+            if let Some(i) = p.headers.iter().position(|h| *h == header) {
+                fields.insert(format!("{prefix}_col_{i}"), column);
+                guessed = true;
+            }
+        }
+    }
+    (fields, guessed)
 }
 
 /// Whether header `index` is read as `column` (for the preview's selects).
