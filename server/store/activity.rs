@@ -45,23 +45,45 @@ pub async fn record(
     Ok(())
 }
 
-/// The newest `limit` entries of a study, optionally only those whose action matches.
+/// The newest `limit` entries of a study, optionally only those of one action and/or
+/// one person.
 pub async fn list(
     db: impl SqliteExecutor<'_>,
     study_id: i64,
     action: Option<&str>,
+    actor: Option<&str>,
     limit: i64,
 ) -> StoreResult<Vec<ActivityRow>> {
     sqlx::query_as(
         "SELECT id, at, actor, action, subject, before_state, after_state FROM activity
-         WHERE study_id = ? AND (?2 IS NULL OR action = ?2)
-         ORDER BY id DESC LIMIT ?3",
+         WHERE study_id = ?1 AND (?2 IS NULL OR action = ?2) AND (?3 IS NULL OR actor = ?3)
+         ORDER BY id DESC LIMIT ?4",
     )
     .bind(study_id)
     .bind(action)
+    .bind(actor)
     .bind(limit)
     .fetch_all(db)
     .await
+}
+
+/// The kinds of change and the people that appear in a study's log, for the filters.
+pub async fn kinds_and_actors(
+    db: &mut sqlx::SqliteConnection,
+    study_id: i64,
+) -> StoreResult<(Vec<String>, Vec<String>)> {
+    let actions = sqlx::query_scalar(
+        "SELECT DISTINCT action FROM activity WHERE study_id = ? ORDER BY action",
+    )
+    .bind(study_id)
+    .fetch_all(&mut *db)
+    .await?;
+    let actors =
+        sqlx::query_scalar("SELECT DISTINCT actor FROM activity WHERE study_id = ? ORDER BY actor")
+            .bind(study_id)
+            .fetch_all(&mut *db)
+            .await?;
+    Ok((actions, actors))
 }
 
 /// The id of the newest activity row of a study (0 if none): every change writes one,
