@@ -90,11 +90,6 @@ pub mod fmt {
         a == b
     }
 
-    /// A number as plain text for a form value, or empty when absent.
-    pub fn plain(x: &Option<f64>) -> String {
-        x.map(|v| v.to_string()).unwrap_or_default()
-    }
-
     /// A number with `d` decimals, or an en dash when absent.
     pub fn num(x: &Option<f64>, d: usize) -> String {
         match x {

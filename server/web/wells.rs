@@ -238,6 +238,35 @@ impl WellView {
     pub fn pick(&self, event: &i64) -> Option<&PickRow> {
         self.picks.iter().find(|p| p.event == *event)
     }
+
+    /// What the pick form of an event starts with: a trial timing being looked at
+    /// (event 1), else the saved pick, else the proposal (event 1), else empty.
+    fn form_value(&self, event: i64, of: impl Fn(f64, f64) -> f64) -> String {
+        let trial = (event == 1)
+            .then(|| self.trial.as_ref().and_then(Trial::timing))
+            .flatten()
+            .map(|t| of(t[0].0, t[0].1));
+        let pick = self
+            .pick(&event)
+            .map(|p| of(p.rift_onset_ma, p.rift_end_ma));
+        let proposal = (event == 1)
+            .then_some(self.proposal.as_ref())
+            .flatten()
+            .and_then(|p| Some(of(p.rift_onset_ma?, p.rift_end_ma?)));
+        trial
+            .or(pick)
+            .or(proposal)
+            .map(|v| v.to_string())
+            .unwrap_or_default()
+    }
+
+    pub fn form_onset(&self, event: &i64) -> String {
+        self.form_value(*event, |onset, _| onset)
+    }
+
+    pub fn form_end(&self, event: &i64) -> String {
+        self.form_value(*event, |_, end| end)
+    }
 }
 
 /// The automatic proposal, shown beside the team's pick.
