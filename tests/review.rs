@@ -617,6 +617,12 @@ async fn a_trial_timing_refits_without_storing_anything() {
         "{}",
         page.body
     );
+    // The event-1 form starts with the timing being looked at, so "Save" keeps it.
+    for (field, value) in [("rift_onset_ma", PICK.0), ("rift_end_ma", PICK.1)] {
+        let wanted =
+            format!("name=\"{field}\" type=\"number\" step=\"any\" min=\"0\" value=\"{value}\"");
+        assert!(page.body.contains(&wanted), "{wanted} in {}", page.body);
+    }
     assert_eq!(
         s.app.database_content().await,
         stored,
