@@ -431,3 +431,43 @@ async fn a_study_name_on_two_lines_keeps_the_csv_preamble_whole() {
     // A name with a line break (the API accepts one) must not end the `#` preamble.
     check_every_download("Tarn Trough\nnorth block").await;
 }
+
+/// Width and height from a PNG's IHDR chunk.
+fn png_size(png: &[u8]) -> (u32, u32) {
+    let be = |b: &[u8]| u32::from_be_bytes([b[0], b[1], b[2], b[3]]);
+    (be(&png[16..20]), be(&png[20..24]))
+}
+
+#[tokio::test]
+async fn every_chart_also_downloads_as_a_png_at_twice_its_size() {
+    let s = Scene::new("Pell Trough pictures").await;
+    let paths = [
+        format!(
+            "/studies/{}/wells/{}/download/subsidence.png",
+            s.study, s.well
+        ),
+        format!("/studies/{}/wells/{}/download/burial.png", s.study, s.well),
+        format!(
+            "/studies/{}/wells/{}/download/heat-flow.png",
+            s.study, s.well
+        ),
+        format!("/studies/{}/download/map.png", s.study),
+        format!("/studies/{}/download/rift-timing.png", s.study),
+    ];
+    for path in paths {
+        let response = s
+            .app
+            .request(reqwest::Method::GET, &path)
+            .send()
+            .await
+            .expect("GET");
+        assert_eq!(response.status(), StatusCode::OK, "{path}");
+        assert_eq!(response.headers()["content-type"], "image/png", "{path}");
+        let png = response.bytes().await.expect("body");
+        assert_eq!(&png[..8], b"\x89PNG\r\n\x1a\n", "{path}");
+        let (width, height) = png_size(&png);
+        // 900 px charts drawn at twice their size, plus the caption strip below.
+        assert_eq!(width, 1800, "{path}");
+        assert!(height > 2 * 320, "{path}: {height}");
+    }
+}

@@ -15,6 +15,7 @@
 mod burial;
 mod frame;
 mod heat_flow;
+mod png;
 mod rift_timing;
 mod style;
 mod subsidence;
@@ -28,6 +29,7 @@ pub use burial::{
     BurialChartData, BurialHorizon, BurialUnit, BurialUnitStep, WaterDepthPoint, burial_chart,
 };
 pub use heat_flow::{HeatFlowChartData, heat_flow_chart};
+pub use png::svg_to_png;
 pub use rift_timing::{RiftTimingData, RiftTimingWell, rift_timing_chart};
 pub use style::{lithology_colour_hex, sequential_colour_hex};
 pub use subsidence::{PhaseBand, SubsidenceChartData, TectonicPoint, subsidence_chart};

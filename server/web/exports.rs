@@ -106,6 +106,108 @@ fn one_line(text: &str) -> String {
         .collect()
 }
 
+impl ExportMeta {
+    /// The chart with a caption strip below it (study, date, parameters, caution), so a
+    /// picture pasted into a report still says where it comes from. For the PNG export.
+    pub fn captioned_svg(&self, svg: &str) -> String {
+        const LINE_PX: u32 = 14;
+        let Some((width, height)) = svg_size(svg) else {
+            return svg.to_string();
+        };
+        let p = &self.parameters.model;
+        let lines = [
+            format!(
+                "{} · generated {} by {}",
+                self.study, self.generated_at, self.generated_by
+            ),
+            format!(
+                "mantle {} kg/m³, crust {} kg/m³, water {} kg/m³, lithosphere {} m, crust {} m, T1 {} °C, α {} /°C, κ {} m²/s, k {} W/(m·K)",
+                p.mantle_density_kg_m3,
+                p.crust_density_kg_m3,
+                p.water_density_kg_m3,
+                p.lithosphere_thickness_m,
+                p.crust_thickness_m,
+                p.asthenosphere_temperature_c,
+                p.thermal_expansion_per_c,
+                p.thermal_diffusivity_m2_s,
+                p.thermal_conductivity_w_m_k
+            ),
+            self.caution.to_string(),
+        ];
+        let strip = LINE_PX * (lines.len() as u32) + 10;
+        let mut caption = format!(
+            "<g data-series=\"export-caption\"><rect x=\"0\" y=\"{height}\" width=\"{width}\" height=\"{strip}\" fill=\"#FFFFFF\"/>"
+        );
+        for (i, line) in lines.iter().enumerate() {
+            let y = height + 14 + LINE_PX * i as u32;
+            caption.push_str(&format!(
+                "<text x=\"8\" y=\"{y}\" font-family=\"sans-serif\" font-size=\"10\" fill=\"#4a5866\" textLength=\"{}\" lengthAdjust=\"spacingAndGlyphs\">{}</text>",
+                // Keep a long line inside the picture by squeezing it, never clipping it.
+                (width - 16).min((line.chars().count() as u32) * 6),
+                xml_escape(line)
+            ));
+        }
+        caption.push_str("</g>");
+        let new_height = height + strip;
+        let resized = svg.replacen(
+            &format!("height=\"{height}\" viewBox=\"0 0 {width} {height}\""),
+            &format!("height=\"{new_height}\" viewBox=\"0 0 {width} {new_height}\""),
+            1,
+        );
+        match resized.rfind("</svg>") {
+            Some(end) => format!("{}{}{}", &resized[..end], caption, &resized[end..]),
+            None => svg.to_string(),
+        }
+    }
+}
+
+/// Width and height of a chart's `<svg width=".." height="..">`.
+fn svg_size(svg: &str) -> Option<(u32, u32)> {
+    let attr = |name: &str| -> Option<u32> {
+        let start = svg.find(&format!("{name}=\""))? + name.len() + 2;
+        svg[start..].split('"').next()?.parse().ok()
+    };
+    Some((attr("width")?, attr("height")?))
+}
+
+/// A chart as a PNG download (rasterised at twice its size, with the caption strip).
+pub fn png_download(meta: &ExportMeta, file_name: &str, svg: &str) -> Response {
+    match crate::charts::svg_to_png(&meta.captioned_svg(svg), 2.0) {
+        Ok(png) => (
+            [
+                (header::CONTENT_TYPE, "image/png".to_string()),
+                (
+                    header::CONTENT_DISPOSITION,
+                    format!("attachment; filename=\"{}\"", safe_name(file_name)),
+                ),
+            ],
+            png,
+        )
+            .into_response(),
+        Err(e) => {
+            tracing::error!(error = %e, "chart could not be rasterised");
+            (
+                axum::http::StatusCode::INTERNAL_SERVER_ERROR,
+                "The chart could not be turned into a PNG; the SVG download works.",
+            )
+                .into_response()
+        }
+    }
+}
+
+fn safe_name(file_name: &str) -> String {
+    file_name
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() || ".-_".contains(c) {
+                c
+            } else {
+                '_'
+            }
+        })
+        .collect()
+}
+
 fn xml_escape(s: &str) -> String {
     s.replace('&', "&amp;")
         .replace('<', "&lt;")
@@ -130,16 +232,7 @@ pub fn csv_text(meta: &ExportMeta, what: &str, header: &[&str], rows: &[Vec<Stri
 
 /// A download response with a file name.
 pub fn download(content_type: &'static str, file_name: &str, body: String) -> Response {
-    let safe: String = file_name
-        .chars()
-        .map(|c| {
-            if c.is_ascii_alphanumeric() || ".-_".contains(c) {
-                c
-            } else {
-                '_'
-            }
-        })
-        .collect();
+    let safe = safe_name(file_name);
     (
         [
             (header::CONTENT_TYPE, content_type.to_string()),
@@ -151,4 +244,46 @@ pub fn download(content_type: &'static str, file_name: &str, body: String) -> Re
         body,
     )
         .into_response()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::StudyInputs;
+    use crate::science::lithology::Catalogue;
+    use crate::science::{ModelParameters, SeaLevelCurve};
+
+    fn meta() -> ExportMeta {
+        let inputs = StudyInputs {
+            params: ModelParameters::default(),
+            catalogue: Catalogue::published_defaults(),
+            sea_level: SeaLevelCurve::default(),
+        };
+        ExportMeta::new("Orrin <Shelf>", &inputs)
+    }
+
+    #[test]
+    fn a_captioned_chart_grows_by_its_caption_and_names_study_parameters_and_caution() {
+        let svg = r##"<svg width="900" height="480" viewBox="0 0 900 480" xmlns="http://www.w3.org/2000/svg"><rect width="900" height="480" fill="#fff"/></svg>"##;
+        let out = meta().captioned_svg(svg);
+        assert!(
+            out.starts_with(r#"<svg width="900" height="532" viewBox="0 0 900 532""#),
+            "{out}"
+        );
+        assert!(
+            out.contains("Orrin &lt;Shelf&gt;"),
+            "the study name, escaped: {out}"
+        );
+        assert!(
+            out.contains("mantle 3330 kg/m³") && out.contains("k 3.1 W/(m·K)"),
+            "{out}"
+        );
+        assert!(out.contains("do not replace"), "{out}");
+        assert!(out.ends_with("</g></svg>"), "{out}");
+    }
+
+    #[test]
+    fn something_without_a_size_is_left_as_it_is() {
+        assert_eq!(meta().captioned_svg("<svg></svg>"), "<svg></svg>");
+    }
 }

@@ -388,6 +388,18 @@ async fn study_download(
                 )),
             )
         }
+        "map.png" => {
+            let chart = charts::well_map_chart(&map_data(&base, &rows), ChartSize::default());
+            exports::png_download(&meta, &format!("{base}-map.png"), &chart)
+        }
+        "rift-timing.png" => {
+            let size = ChartSize {
+                width: 900,
+                height: rift_chart_height(rows.len()),
+            };
+            let chart = charts::rift_timing_chart(&rift_timing_data(&base, &rows), size);
+            exports::png_download(&meta, &format!("{base}-rift-timing.png"), &chart)
+        }
         "analysis.json" => {
             let memo =
                 results::study_results_memo(&state.db, &state.cache, &state.study_memo, id).await?;

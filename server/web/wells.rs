@@ -397,6 +397,18 @@ async fn well_download(
             &well_charts::heat_flow_data(name, a),
             size,
         )),
+        "subsidence.png" => {
+            let chart = charts::subsidence_chart(&well_charts::subsidence_data(name, a), size);
+            exports::png_download(&meta, &format!("{name}-{file}"), &chart)
+        }
+        "burial.png" => {
+            let chart = charts::burial_chart(&well_charts::burial_data(name, a), size);
+            exports::png_download(&meta, &format!("{name}-{file}"), &chart)
+        }
+        "heat-flow.png" => {
+            let chart = charts::heat_flow_chart(&well_charts::heat_flow_data(name, a), size);
+            exports::png_download(&meta, &format!("{name}-{file}"), &chart)
+        }
         "history.csv" => {
             let out = analysis::well_out(a);
             csv(
