@@ -22,13 +22,14 @@ use std::path::Path;
 use std::process::Command;
 use std::time::Duration;
 
-/// Run the binary once on `tops`, writing the JSON report to `out`.
-fn run_analyze(tops: &Path, out: &Path) {
+/// Run the binary once on `tops`, writing the JSON report to `out`, with `extra` options.
+fn run_analyze_with(tops: &Path, out: &Path, extra: &[&str]) {
     let result = Command::new(env!("CARGO_BIN_EXE_sagline"))
         .arg("analyze")
         .arg(tops)
         .arg("--out")
         .arg(out)
+        .args(extra)
         .output()
         .expect("start the sagline binary");
     assert!(
@@ -36,6 +37,11 @@ fn run_analyze(tops: &Path, out: &Path) {
         "sagline analyze failed: {}",
         String::from_utf8_lossy(&result.stderr)
     );
+}
+
+/// The whole analysis: backstripping, phase search, fits and their ranges.
+fn run_analyze(tops: &Path, out: &Path) {
+    run_analyze_with(tops, out, &[]);
 }
 
 fn analyze(c: &mut Criterion) {
@@ -65,6 +71,10 @@ fn analyze(c: &mut Criterion) {
     group.bench_function(
         "sagline analyze, 1,000 wells x 60 surfaces, JSON to a file",
         |b| b.iter(|| run_analyze(&tops_path, &out_path)),
+    );
+    group.bench_function(
+        "sagline analyze --backstrip-only, 1,000 wells x 60 surfaces, JSON to a file",
+        |b| b.iter(|| run_analyze_with(&tops_path, &out_path, &["--backstrip-only"])),
     );
 
     // The same wells, read as the command reads them, analysed in-process.
