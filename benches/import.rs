@@ -5,6 +5,9 @@
 //!
 //! Few samples, since one import takes seconds.
 
+mod common;
+
+use common::{create_admin, signed_in_admin};
 use criterion::{Criterion, SamplingMode, Throughput, criterion_group, criterion_main};
 use reqwest::multipart::{Form, Part};
 use std::fmt::Write;
@@ -13,8 +16,6 @@ use std::time::{Duration, Instant};
 const WELLS: usize = 2_000;
 const SURFACES_PER_WELL: usize = 50;
 const ROWS: usize = WELLS * SURFACES_PER_WELL;
-const ADMIN_NAME: &str = "bench-admin";
-const ADMIN_PASSWORD: &str = "basalt-quarry-58-bench";
 
 /// The invented file: wells `Tamsin-0001`… with surfaces 25–95 m apart and 1.5 Myr
 /// apart, lithologies cycling through a name, a mix and another case of a name,
@@ -70,15 +71,7 @@ impl FreshServer {
         let pool = sagline::store::open(&dir.path().join("bench.db"))
             .await
             .expect("open the database");
-        sagline::services::accounts::create_user(
-            &pool,
-            ADMIN_NAME,
-            sagline::auth::Role::Admin,
-            Some(ADMIN_PASSWORD),
-            "bench setup",
-        )
-        .await
-        .expect("create the admin");
+        create_admin(&pool).await;
         let study = sagline::services::create_study(&pool, "Tamsin Basin (bench)", "", "bench")
             .await
             .expect("create the study");
@@ -94,31 +87,7 @@ impl FreshServer {
             std::future::pending(),
         ));
         // Sign in outside the timed part: the session cookie and its CSRF token.
-        let client = reqwest::Client::builder()
-            .no_proxy()
-            .cookie_store(true)
-            .redirect(reqwest::redirect::Policy::none())
-            .build()
-            .expect("HTTP client");
-        client
-            .post(format!("{base}/login"))
-            .header("content-type", "application/x-www-form-urlencoded")
-            .body(format!("name={ADMIN_NAME}&password={ADMIN_PASSWORD}"))
-            .send()
-            .await
-            .expect("sign in");
-        let session: serde_json::Value = client
-            .get(format!("{base}/api/session"))
-            .send()
-            .await
-            .expect("GET /api/session")
-            .json()
-            .await
-            .expect("session JSON");
-        let csrf = session["csrf_token"]
-            .as_str()
-            .expect("csrf_token")
-            .to_string();
+        let (client, csrf) = signed_in_admin(&base).await;
         FreshServer {
             url,
             client,

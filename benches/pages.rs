@@ -12,19 +12,17 @@
 
 mod common;
 
-use common::{SURFACES_PER_WELL, WELLS, invented_basin_tops};
+use common::{
+    ADMIN_NAME, SURFACES_PER_WELL, WELLS, create_admin, invented_basin_tops, signed_in_admin,
+};
 use criterion::{Criterion, SamplingMode, criterion_group, criterion_main};
-use reqwest::header::CONTENT_TYPE;
 use reqwest::multipart::{Form, Part};
 use reqwest::{Client, StatusCode};
-use sagline::auth::Role;
 use sqlx::SqlitePool;
 use std::time::{Duration, Instant};
 use tokio::runtime::Runtime;
 
 /// The benchmark's admin (invented name and password).
-const ADMIN_NAME: &str = "bench-admin";
-const ADMIN_PASSWORD: &str = "granite-ledger-73-bench";
 /// How many first renders of the overview are timed.
 const COLD_OVERVIEW_RUNS: usize = 3;
 
@@ -86,46 +84,12 @@ async fn upload_study(tops: Vec<u8>) -> Study {
     let pool = sagline::store::open(&dir.path().join("bench.db"))
         .await
         .expect("open the database");
-    sagline::services::accounts::create_user(
-        &pool,
-        ADMIN_NAME,
-        Role::Admin,
-        Some(ADMIN_PASSWORD),
-        "bench setup",
-    )
-    .await
-    .expect("create the admin");
+    create_admin(&pool).await;
     let study = sagline::services::create_study(&pool, "Tarrow Basin (bench)", "", ADMIN_NAME)
         .await
         .expect("create the study");
     let server = Server::start(&pool).await;
-    let client = Client::builder()
-        .no_proxy()
-        .cookie_store(true)
-        .redirect(reqwest::redirect::Policy::none())
-        .build()
-        .expect("HTTP client");
-
-    let signed_in = client
-        .post(format!("{}/login", server.base))
-        .header(CONTENT_TYPE, "application/x-www-form-urlencoded")
-        .body(format!("name={ADMIN_NAME}&password={ADMIN_PASSWORD}"))
-        .send()
-        .await
-        .expect("sign in");
-    assert_eq!(signed_in.status(), StatusCode::SEE_OTHER, "sign in");
-    let session: serde_json::Value = client
-        .get(format!("{}/api/session", server.base))
-        .send()
-        .await
-        .expect("GET /api/session")
-        .json()
-        .await
-        .expect("session JSON");
-    let csrf = session["csrf_token"]
-        .as_str()
-        .expect("csrf_token")
-        .to_string();
+    let (client, csrf) = signed_in_admin(&server.base).await;
 
     let part = Part::bytes(tops)
         .file_name("tarrow_tops.csv")

@@ -4,6 +4,10 @@
 //!
 //! Wells `Tarrow-0001`… (invented names) share 60 surfaces 4 Myr apart (236 Ma to
 //! present); each well has its own stretching factor, rift timing and lithology cycle.
+//!
+//! Also the bench's admin account and its signed-in client. Each bench uses only some
+//! of these helpers, hence the `dead_code` allowance.
+#![allow(dead_code)]
 
 use rayon::prelude::*;
 use sagline::science::forward::{ForwardSpec, ForwardStretching, ForwardSurface, forward_well};
@@ -123,4 +127,60 @@ pub fn invented_basin_tops(wells: usize) -> String {
         csv.push_str(&block);
     }
     csv
+}
+
+/// The benches' admin account (invented).
+pub const ADMIN_NAME: &str = "bench-admin";
+pub const ADMIN_PASSWORD: &str = "granite-ledger-73-bench";
+
+/// Create the bench admin in a fresh database.
+pub async fn create_admin(pool: &sqlx::SqlitePool) {
+    sagline::services::accounts::create_user(
+        pool,
+        ADMIN_NAME,
+        sagline::auth::Role::Admin,
+        Some(ADMIN_PASSWORD),
+        "bench setup",
+    )
+    .await
+    .expect("create the admin");
+}
+
+/// A client signed in as the bench admin on the server at `base`, and its session's
+/// CSRF token for state-changing requests.
+pub async fn signed_in_admin(base: &str) -> (reqwest::Client, String) {
+    let client = reqwest::Client::builder()
+        .no_proxy()
+        .cookie_store(true)
+        .redirect(reqwest::redirect::Policy::none())
+        .build()
+        .expect("HTTP client");
+    let signed_in = client
+        .post(format!("{base}/login"))
+        .header(
+            reqwest::header::CONTENT_TYPE,
+            "application/x-www-form-urlencoded",
+        )
+        .body(format!("name={ADMIN_NAME}&password={ADMIN_PASSWORD}"))
+        .send()
+        .await
+        .expect("sign in");
+    assert_eq!(
+        signed_in.status(),
+        reqwest::StatusCode::SEE_OTHER,
+        "sign in"
+    );
+    let session: serde_json::Value = client
+        .get(format!("{base}/api/session"))
+        .send()
+        .await
+        .expect("GET /api/session")
+        .json()
+        .await
+        .expect("session JSON");
+    let csrf = session["csrf_token"]
+        .as_str()
+        .expect("csrf_token")
+        .to_string();
+    (client, csrf)
 }

@@ -2,30 +2,18 @@ use super::*;
 use crate::science::backstrip::backstrip;
 use crate::science::fit::{SubsidenceCurve, SubsidenceObservation, fit_two_layer};
 use crate::science::phases::propose_phases;
+use crate::science::phases::tests::surface_ages;
 use crate::science::tolerance::assert_relative;
 use crate::science::uncertainty::{MonteCarloSettings, stretching_uncertainty};
 use crate::science::{MixPart, SeaLevelPoint};
 use rand::rngs::StdRng;
 use rand::{RngExt, SeedableRng};
 
-/// Invented surface ages 2-8 Myr apart from `oldest` to 0 Ma, plus `must`, youngest first.
+/// Invented surface ages 2-8 Myr apart from `oldest` to 0 Ma, plus `must`, youngest first
+/// (the order of a well's surfaces).
 fn ages(oldest: f64, must: &[f64]) -> Vec<f64> {
-    let mut ages = vec![0.0, oldest];
-    let (mut age, mut k) = (0.0, 0u32);
-    loop {
-        k += 1;
-        age += 2.0 + 6.0 * (((k * 7919) % 13) as f64 / 12.0);
-        if age >= oldest - 0.5 {
-            break;
-        }
-        let age = (age * 10.0f64).round() / 10.0;
-        if must.iter().all(|m| (age - m).abs() >= 0.5) {
-            ages.push(age);
-        }
-    }
-    ages.extend(must);
-    ages.sort_by(f64::total_cmp);
-    ages.dedup();
+    let mut ages = surface_ages(oldest, must);
+    ages.reverse();
     ages
 }
 

@@ -509,4 +509,4 @@ fn grid_minimum(rss: &[f64; GRID], grid_u: &[f64; GRID]) -> (f64, f64) {
 
 #[cfg(test)]
 #[path = "phases_tests.rs"]
-mod tests;
+pub(crate) mod tests;

@@ -5,8 +5,8 @@ use crate::science::fit::tests::{classifier_curve, exact, mckenzie};
 use crate::science::tolerance::assert_relative;
 
 /// Irregular surface ages from `oldest` to 0 Ma (deterministic spacing 2-8 Myr, plus
-/// the given ages), oldest first.
-fn surface_ages(oldest: f64, must: &[f64]) -> Vec<f64> {
+/// the given ages), oldest first. Shared with the forward-model tests.
+pub(crate) fn surface_ages(oldest: f64, must: &[f64]) -> Vec<f64> {
     let mut ages = vec![0.0, oldest];
     let (mut age, mut k) = (0.0, 0u32);
     loop {

@@ -29,6 +29,9 @@ pub enum ServiceError {
     },
     #[error(transparent)]
     Database(#[from] sqlx::Error),
+    /// Something that should not happen (a panicked analysis task); logged, never shown.
+    #[error("internal error: {0}")]
+    Internal(String),
 }
 
 use crate::science::ModelParameters;

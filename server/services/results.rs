@@ -105,9 +105,9 @@ pub async fn well_result(
     let inputs = super::study_inputs(db, study_id).await?;
     let surfaces = store::wells::surfaces(db, well.id).await?;
     let mut results = run(cache, &inputs, vec![(well, surfaces, timing)]).await?;
-    let result = results
-        .pop()
-        .ok_or_else(|| ServiceError::Invalid("no result".into()))?;
+    let result = results.pop().ok_or_else(|| {
+        ServiceError::Internal("the analysis returned no result for one well".into())
+    })?;
     Ok((inputs, result))
 }
 
@@ -132,7 +132,7 @@ async fn run(
             .collect()
     })
     .await
-    .map_err(|e| ServiceError::Invalid(format!("the analysis stopped unexpectedly: {e}")))
+    .map_err(|e| ServiceError::Internal(format!("the analysis task failed: {e}")))
 }
 
 fn analyse_cached(

@@ -59,6 +59,7 @@ impl From<crate::services::ServiceError> for AppError {
             S::Conflict(msg) => AppError::Conflict(msg),
             S::Stale { message, current } => AppError::Stale { message, current },
             S::Database(e) => AppError::Database(e),
+            S::Internal(e) => AppError::Internal(anyhow::anyhow!(e)),
         }
     }
 }

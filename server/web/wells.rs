@@ -281,7 +281,12 @@ pub struct ProposalView {
 
 impl ProposalView {
     fn of(a: &WellAnalysis) -> Self {
-        let st = analysis::well_out(a).stretching;
+        // Only the fit: building the whole history of the contract is not needed here.
+        let st = a
+            .interpretation
+            .as_ref()
+            .ok()
+            .and_then(analysis::stretching_out);
         ProposalView {
             rift_onset_ma: st.as_ref().map(|s| s.rift_onset_ma),
             rift_end_ma: st.as_ref().map(|s| s.rift_end_ma),
