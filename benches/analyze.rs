@@ -14,10 +14,10 @@ mod common;
 
 use common::{SURFACES_PER_WELL, WELLS, invented_basin_tops};
 use criterion::{Criterion, SamplingMode, Throughput, criterion_group, criterion_main};
-use sagline::analysis::{self, StudyInputs};
-use sagline::input::{self, TopsOptions};
-use sagline::science::lithology::Catalogue;
-use sagline::science::{ModelParameters, SeaLevelCurve};
+use sagline_science::analysis::{self, StudyInputs};
+use sagline_science::input::{self, TopsOptions};
+use sagline_science::lithology::Catalogue;
+use sagline_science::{ModelParameters, SeaLevelCurve};
 use std::path::Path;
 use std::process::Command;
 use std::time::Duration;

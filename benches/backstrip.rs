@@ -3,9 +3,9 @@
 //! Target: under 100 microseconds on one core.
 
 use criterion::{Criterion, criterion_group, criterion_main};
-use sagline::science::backstrip::backstrip;
-use sagline::science::lithology::Catalogue;
-use sagline::science::{
+use sagline_science::backstrip::backstrip;
+use sagline_science::lithology::Catalogue;
+use sagline_science::{
     Erosion, LithologyMix, MixPart, ModelParameters, SeaLevelCurve, SeaLevelPoint, Surface,
     WaterDepth, WellColumn,
 };

@@ -3,11 +3,11 @@
 //! under 2 ms) and with the 200-draw Monte-Carlo range (target under 50 ms).
 
 use criterion::{Criterion, criterion_group, criterion_main};
-use sagline::science::fit::{RiftEvent, SubsidenceObservation, UniformFit};
-use sagline::science::mckenzie::Lithosphere;
-use sagline::science::phases::propose_phases;
-use sagline::science::uncertainty::{MonteCarloSettings, stretching_uncertainty};
-use sagline::science::{Bounds, ModelParameters};
+use sagline_science::fit::{RiftEvent, SubsidenceObservation, UniformFit};
+use sagline_science::mckenzie::Lithosphere;
+use sagline_science::phases::propose_phases;
+use sagline_science::uncertainty::{MonteCarloSettings, stretching_uncertainty};
+use sagline_science::{Bounds, ModelParameters};
 use std::hint::black_box;
 
 /// Sixty invented surfaces 2.5-4.5 Myr apart, on a beta 1.8 rift from 121 to 104 Ma,

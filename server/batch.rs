@@ -3,11 +3,11 @@
 //! and age). Nothing is printed to stdout unless every input is valid and the
 //! output is complete.
 
-use crate::analysis::{self, StudyInputs, contract::Report};
-use crate::input::{self, InputProblem, TopsOptions};
-use crate::science::lithology::{Catalogue, Lithology};
-use crate::science::{ModelParameters, SeaLevelCurve};
 use clap::{Args, ValueEnum};
+use sagline_science::analysis::{self, StudyInputs, contract::Report};
+use sagline_science::input::{self, InputProblem, TopsOptions};
+use sagline_science::lithology::{Catalogue, Lithology};
+use sagline_science::{ModelParameters, SeaLevelCurve};
 use serde::Deserialize;
 use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};

@@ -8,7 +8,7 @@
 //! 2. The design curve is the well's tectonic subsidence: one uniform event
 //!    (McKenzie 1978), two events, a two-layer event (Royden & Keen 1980), or, with no
 //!    rift, a straight line of steady background subsidence.
-//! 3. [`crate::science::forward::forward_well`] builds the well without its hiatus and
+//! 3. [`sagline_science::forward::forward_well`] builds the well without its hiatus and
 //!    unconformity horizons. It follows one event (or none); the rest of the design
 //!    curve (a second event, the background line) is carried meanwhile by a water depth
 //!    shallower by that amount in Airy terms, and the recorded water depth is then put
@@ -45,13 +45,13 @@ pub use spec::{
 };
 pub use well::{DesignStretching, WellDesign};
 
-use crate::input::{self, TopsOptions, WellsOptions};
-use crate::science::backstrip::backstrip;
-use crate::science::lithology::Catalogue;
-use crate::science::mckenzie::Lithosphere;
-use crate::science::{ModelParameters, SeaLevelCurve};
 use rand::SeedableRng;
 use rand::rngs::StdRng;
+use sagline_science::backstrip::backstrip;
+use sagline_science::input::{self, TopsOptions, WellsOptions};
+use sagline_science::lithology::Catalogue;
+use sagline_science::mckenzie::Lithosphere;
+use sagline_science::{ModelParameters, SeaLevelCurve};
 use std::path::Path;
 use std::process::ExitCode;
 use well::{BuiltWell, Context};

@@ -1,9 +1,9 @@
 //! Sagline: well-by-well subsidence analysis for sedimentary basins.
 //!
-//! Dependencies point one way: `web` → (`services`, `store`, `analysis`) → `science`.
+//! The science core, the input parsing and the analysis contract are the crate
+//! `sagline_science` (server/science/); everything here depends on it, never the
+//! other way round.
 
-/// Whole-well and whole-study analysis on top of the science core, and the JSON contract.
-pub mod analysis;
 /// Accounts and access without I/O: roles, the access rules, password hashing, session tokens.
 pub mod auth;
 /// The `sagline analyze` batch command.
@@ -16,10 +16,6 @@ pub mod cli;
 pub mod demo;
 /// Builds the demo study's CSV files from the invented basin in `demo-db/basin.json`.
 pub mod demo_build;
-/// Reading and checking the input CSV files (tops, wells, sea level, picks).
-pub mod input;
-/// The pure science core: decompaction, backstripping, stretching models, heat flow.
-pub mod science;
 /// Starting and stopping the web server.
 pub mod server;
 /// Operations that change data: one transaction each, with their activity-log row.

@@ -11,8 +11,8 @@ use common::rift::{TROUGH_WELL, rift_study, stretching};
 use common::{Answer, TestApp};
 use reqwest::StatusCode;
 use roxmltree::{Document, Node};
-use sagline::science::params::PARAMETER_RANGES;
-use sagline::science::tolerance::assert_relative;
+use sagline_science::params::PARAMETER_RANGES;
+use sagline_science::tolerance::assert_relative;
 use serde_json::{Value, json};
 use std::collections::{BTreeMap, BTreeSet};
 

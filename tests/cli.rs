@@ -7,10 +7,10 @@
 //! Wells with a clear rift are built by the forward model (`science::forward`), so the
 //! stretching they were built with is known. Every well and horizon name is invented.
 
-use sagline::science::forward::{ForwardSpec, ForwardStretching, ForwardSurface, forward_well};
-use sagline::science::lithology::Catalogue;
-use sagline::science::tolerance::assert_relative;
-use sagline::science::{LithologyMix, MixPart, ModelParameters, SeaLevelCurve, WaterDepth};
+use sagline_science::forward::{ForwardSpec, ForwardStretching, ForwardSurface, forward_well};
+use sagline_science::lithology::Catalogue;
+use sagline_science::tolerance::assert_relative;
+use sagline_science::{LithologyMix, MixPart, ModelParameters, SeaLevelCurve, WaterDepth};
 use serde_json::Value;
 use std::fmt::Write;
 use std::path::PathBuf;

@@ -127,7 +127,7 @@ async fn every_page_and_its_json_twin_answer_on_the_demo_study() {
     )
     .await;
     assert!(html.body.contains("enctype=\"multipart/form-data\""));
-    let mib = (sagline::input::MAX_FILE_BYTES / (1024 * 1024)) as u64;
+    let mib = (sagline_science::input::MAX_FILE_BYTES / (1024 * 1024)) as u64;
     assert_eq!(json["max_file_mib"].as_u64(), Some(mib));
     assert_eq!(
         json["uploads"].as_array().unwrap().len(),
@@ -143,7 +143,7 @@ async fn every_page_and_its_json_twin_answer_on_the_demo_study() {
     .await;
     assert_eq!(
         json["parameters"].as_array().unwrap().len(),
-        sagline::science::params::PARAMETER_RANGES.len()
+        sagline_science::params::PARAMETER_RANGES.len()
     );
     assert!(
         json["lithologies"]

@@ -9,7 +9,7 @@ mod common;
 
 use common::TestApp;
 use reqwest::StatusCode;
-use sagline::analysis::cache::CacheStats;
+use sagline::services::cache::CacheStats;
 use serde_json::{Value, json};
 use std::collections::BTreeMap;
 

@@ -12,7 +12,7 @@ use common::rift::{TROUGH_WELL, rift_study, stretching};
 use common::{ADMIN_NAME, Agent, Answer, TestApp};
 use reqwest::{Method, StatusCode};
 use sagline::auth::Role;
-use sagline::science::tolerance::assert_printed;
+use sagline_science::tolerance::assert_printed;
 use serde_json::{Value, json};
 use std::time::Duration;
 

@@ -14,7 +14,7 @@ use common::tops::{
 };
 use common::{TestApp, only_problem};
 use reqwest::StatusCode;
-use sagline::science::tolerance::assert_printed;
+use sagline_science::tolerance::assert_printed;
 use serde_json::Value;
 
 #[tokio::test]
@@ -226,7 +226,7 @@ async fn each_kind_of_bad_file_is_refused_with_its_line_column_and_reason_and_st
 async fn a_file_just_over_the_size_limit_is_refused_with_the_limit_named() {
     let (app, study) = app_with_a_stored_well().await;
     let before = app.database_content().await;
-    let limit = sagline::input::MAX_FILE_BYTES;
+    let limit = sagline_science::input::MAX_FILE_BYTES;
     let row = "Veyra-1,Sea floor,85,0,shale,,,,\n";
     let mut big = format!("{HEADER}\n").into_bytes();
     big.extend(row.as_bytes().iter().cycle().take(limit + 1 - big.len()));

@@ -10,9 +10,9 @@
 #![allow(dead_code)]
 
 use rayon::prelude::*;
-use sagline::science::forward::{ForwardSpec, ForwardStretching, ForwardSurface, forward_well};
-use sagline::science::lithology::Catalogue;
-use sagline::science::{LithologyMix, MixPart, ModelParameters, SeaLevelCurve, WaterDepth};
+use sagline_science::forward::{ForwardSpec, ForwardStretching, ForwardSurface, forward_well};
+use sagline_science::lithology::Catalogue;
+use sagline_science::{LithologyMix, MixPart, ModelParameters, SeaLevelCurve, WaterDepth};
 use std::fmt::Write;
 
 /// Wells in the benchmark study.

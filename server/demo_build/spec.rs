@@ -6,7 +6,7 @@
 //! across a straight trough axis, the rift onset changes linearly along the axis and
 //! the rift end with the same Gaussian weight as beta.
 
-use crate::science::{LithologyMix, MixPart, SeaLevelPoint, WaterDepth};
+use sagline_science::{LithologyMix, MixPart, SeaLevelPoint, WaterDepth};
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 

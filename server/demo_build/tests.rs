@@ -3,9 +3,9 @@
 //! rifts they were built with.
 
 use super::*;
-use crate::analysis::{StudyInputs, analyse_well, analyse_wells};
-use crate::science::WellColumn;
-use crate::science::tolerance::assert_relative;
+use sagline_science::WellColumn;
+use sagline_science::analysis::{StudyInputs, analyse_well, analyse_wells};
+use sagline_science::tolerance::assert_relative;
 
 const SPEC: &str = include_str!("../../demo-db/basin.json");
 const TOPS: &str = include_str!("../../demo-db/tops.csv");

@@ -3,17 +3,17 @@
 //! water-depth correction, noise). The method is set out in `super`'s notes.
 
 use super::spec::{BasinSpec, FieldValues, SecondRift, WellSpec, parse_mix, water_depth};
-use crate::science::backstrip::{airy_tectonic_subsidence, backstrip, water_load_amplification};
-use crate::science::fit::{RiftEvent, TwoLayerFit, UniformFit};
-use crate::science::forward::{ForwardSpec, ForwardStretching, ForwardSurface, forward_well};
-use crate::science::lithology::Catalogue;
-use crate::science::mckenzie::Lithosphere;
-use crate::science::{
-    Erosion, LithologyMix, ModelParameters, SeaLevelCurve, Surface, WaterDepth, WellColumn,
-};
 use rand::RngExt;
 use rand::rngs::StdRng;
 use rand_distr::{Distribution, Normal};
+use sagline_science::backstrip::{airy_tectonic_subsidence, backstrip, water_load_amplification};
+use sagline_science::fit::{RiftEvent, TwoLayerFit, UniformFit};
+use sagline_science::forward::{ForwardSpec, ForwardStretching, ForwardSurface, forward_well};
+use sagline_science::lithology::Catalogue;
+use sagline_science::mckenzie::Lithosphere;
+use sagline_science::{
+    Erosion, LithologyMix, ModelParameters, SeaLevelCurve, Surface, WaterDepth, WellColumn,
+};
 
 /// The stretching a well was built with.
 #[derive(Debug, Clone, Copy, PartialEq)]

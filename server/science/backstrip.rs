@@ -281,10 +281,10 @@ pub fn backstrip(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::science::burial::tests::any_well;
-    use crate::science::column::{Erosion, LithologyMix, SeaLevelPoint, Surface, WaterDepth};
-    use crate::science::decompaction::solid_thickness;
-    use crate::science::tolerance::{assert_printed, assert_relative};
+    use crate::burial::tests::any_well;
+    use crate::column::{Erosion, LithologyMix, SeaLevelPoint, Surface, WaterDepth};
+    use crate::decompaction::solid_thickness;
+    use crate::tolerance::{assert_printed, assert_relative};
     use proptest::prelude::*;
 
     fn surface(horizon: &str, depth_m: f64, age_ma: f64, below: Option<&str>, wd: f64) -> Surface {

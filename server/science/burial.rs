@@ -251,8 +251,8 @@ fn push_unit(
 #[cfg(test)]
 pub(crate) mod tests {
     use super::*;
-    use crate::science::column::{LithologyMix, MixPart, Surface, WaterDepth};
-    use crate::science::tolerance::{DEPTH_SOLVE_M, assert_printed};
+    use crate::column::{LithologyMix, MixPart, Surface, WaterDepth};
+    use crate::tolerance::{DEPTH_SOLVE_M, assert_printed};
     use proptest::prelude::*;
 
     fn surface(horizon: &str, depth_m: f64, age_ma: f64, below: Option<&str>) -> Surface {

@@ -169,8 +169,8 @@ pub fn layer_density(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::science::lithology::Catalogue;
-    use crate::science::tolerance::{assert_printed, assert_relative};
+    use crate::lithology::Catalogue;
+    use crate::tolerance::{assert_printed, assert_relative};
     use proptest::prelude::*;
 
     fn lith(name: &str) -> Lithology {
@@ -251,13 +251,13 @@ mod tests {
         // SCIENCE.md 1.4 method (a): 60 % shale / 40 % sandstone at 2000-3000 m moved to
         // the surface: 1406.66 m.
         let catalogue = Catalogue::published_defaults();
-        let mix = crate::science::LithologyMix {
+        let mix = crate::LithologyMix {
             parts: vec![
-                crate::science::column::MixPart {
+                crate::column::MixPart {
                     lithology: "shale".into(),
                     fraction: 0.6,
                 },
-                crate::science::column::MixPart {
+                crate::column::MixPart {
                     lithology: "sandstone".into(),
                     fraction: 0.4,
                 },

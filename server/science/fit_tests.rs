@@ -1,7 +1,7 @@
 use super::*;
-use crate::science::ModelParameters;
-use crate::science::mckenzie::ThermalSeries;
-use crate::science::tolerance::{assert_printed, assert_relative};
+use crate::ModelParameters;
+use crate::mckenzie::ThermalSeries;
+use crate::tolerance::{assert_printed, assert_relative};
 
 pub(crate) fn mckenzie() -> Lithosphere {
     Lithosphere::water_loaded(&ModelParameters::default()).unwrap()

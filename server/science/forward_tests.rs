@@ -1,11 +1,11 @@
 use super::*;
-use crate::science::backstrip::backstrip;
-use crate::science::fit::{SubsidenceCurve, SubsidenceObservation, fit_two_layer};
-use crate::science::phases::propose_phases;
-use crate::science::phases::tests::surface_ages;
-use crate::science::tolerance::assert_relative;
-use crate::science::uncertainty::{MonteCarloSettings, stretching_uncertainty};
-use crate::science::{MixPart, SeaLevelPoint};
+use crate::backstrip::backstrip;
+use crate::fit::{SubsidenceCurve, SubsidenceObservation, fit_two_layer};
+use crate::phases::propose_phases;
+use crate::phases::tests::surface_ages;
+use crate::tolerance::assert_relative;
+use crate::uncertainty::{MonteCarloSettings, stretching_uncertainty};
+use crate::{MixPart, SeaLevelPoint};
 use rand::rngs::StdRng;
 use rand::{RngExt, SeedableRng};
 
@@ -46,7 +46,7 @@ fn spec(stretching: ForwardStretching, onset: f64, end: f64, ages: &[f64]) -> Fo
         .iter()
         .enumerate()
         .map(|(i, &age)| {
-            let best = 30.0 + 100.0 * crate::science::fit::ramp(onset, end, age);
+            let best = 30.0 + 100.0 * crate::fit::ramp(onset, end, age);
             let half = 10.0 + 0.1 * best;
             ForwardSurface {
                 horizon: format!("Wren {i}"),

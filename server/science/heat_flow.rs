@@ -127,9 +127,9 @@ pub fn regular_ages(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::science::fit::RiftEvent;
-    use crate::science::fit::tests::mckenzie;
-    use crate::science::tolerance::assert_printed;
+    use crate::fit::RiftEvent;
+    use crate::fit::tests::mckenzie;
+    use crate::tolerance::assert_printed;
 
     fn beta_two() -> UniformFit {
         UniformFit {

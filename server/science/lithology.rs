@@ -310,8 +310,8 @@ impl Catalogue {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::science::column::MixPart;
-    use crate::science::tolerance::assert_printed;
+    use crate::column::MixPart;
+    use crate::tolerance::assert_printed;
 
     fn mix(parts: &[(&str, f64)]) -> LithologyMix {
         LithologyMix {

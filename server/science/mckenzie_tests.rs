@@ -1,5 +1,5 @@
 use super::*;
-use crate::science::tolerance::{assert_printed, assert_relative};
+use crate::tolerance::{assert_printed, assert_relative};
 
 /// The "3.1409" conductivity of SCIENCE.md 4.4: the k implied by McKenzie's
 /// equilibrium of 0.8 HFU = 33.4944 mW/m^2, k = q a / T1.

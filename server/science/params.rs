@@ -208,7 +208,7 @@ fn range_text(name: &str) -> &'static str {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::science::tolerance::assert_printed;
+    use crate::tolerance::assert_printed;
 
     #[test]
     fn defaults_are_valid_and_give_mckenzies_time_constant() {

@@ -1,8 +1,8 @@
 use super::*;
-use crate::science::Bounds;
-use crate::science::fit::RiftEvent;
-use crate::science::fit::tests::{classifier_curve, exact, mckenzie};
-use crate::science::tolerance::assert_relative;
+use crate::Bounds;
+use crate::fit::RiftEvent;
+use crate::fit::tests::{classifier_curve, exact, mckenzie};
+use crate::tolerance::assert_relative;
 
 /// Irregular surface ages from `oldest` to 0 Ma (deterministic spacing 2-8 Myr, plus
 /// the given ages), oldest first. Shared with the forward-model tests.

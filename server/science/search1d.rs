@@ -151,7 +151,7 @@ pub(crate) fn bisect_root(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::science::tolerance::assert_relative;
+    use crate::tolerance::assert_relative;
 
     #[test]
     fn brent_finds_a_smooth_minimum_and_a_minimum_on_a_bound() {

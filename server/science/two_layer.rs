@@ -133,9 +133,9 @@ impl Lithosphere {
 
 #[cfg(test)]
 mod tests {
-    use crate::science::ModelParameters;
-    use crate::science::mckenzie::{Lithosphere, ThermalSeries};
-    use crate::science::tolerance::{assert_printed, assert_relative};
+    use crate::ModelParameters;
+    use crate::mckenzie::{Lithosphere, ThermalSeries};
+    use crate::tolerance::{assert_printed, assert_relative};
 
     fn mckenzie() -> Lithosphere {
         Lithosphere::water_loaded(&ModelParameters::default()).unwrap()

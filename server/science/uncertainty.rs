@@ -184,9 +184,9 @@ fn percentile(sorted: &[f64], p: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::science::Bounds;
-    use crate::science::fit::tests::{classifier_curve, mckenzie};
-    use crate::science::fit::{RiftEvent, fit_uniform};
+    use crate::Bounds;
+    use crate::fit::tests::{classifier_curve, mckenzie};
+    use crate::fit::{RiftEvent, fit_uniform};
 
     /// The SCIENCE.md 8.2 classifier curve (beta 2) with a PWD range of +-(5 m + `share`
     /// of the subsidence): deeper water is less certain, so the range widens as the basin

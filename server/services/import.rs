@@ -3,11 +3,13 @@
 //! when the user said so, and an activity-log row for every change.
 
 use super::ServiceError;
-use crate::input::{self, InputProblem, ParsedTops, ParsedWells, TopsOptions, WellsOptions};
-use crate::science::{SeaLevelCurve, WellColumn};
 use crate::store;
 use crate::store::activity::Change;
 use crate::store::wells::Location;
+use sagline_science::input::{
+    self, InputProblem, ParsedTops, ParsedWells, TopsOptions, WellsOptions,
+};
+use sagline_science::{SeaLevelCurve, WellColumn};
 use serde::Serialize;
 use sqlx::SqlitePool;
 

@@ -3,11 +3,12 @@
 //! that same transaction, so a change and its record land together or not at all.
 
 pub mod accounts;
+pub mod cache;
 pub mod import;
 pub mod results;
 pub mod review;
 
-use crate::input::InputProblem;
+use sagline_science::input::InputProblem;
 
 /// What can go wrong in an operation, in words a user can act on. The web layer
 /// maps each kind to its HTTP status; database errors stay internal.
@@ -34,10 +35,10 @@ pub enum ServiceError {
     Internal(String),
 }
 
-use crate::science::ModelParameters;
-use crate::science::lithology::{Catalogue, Lithology};
 use crate::store;
 use crate::store::activity::Change;
+use sagline_science::ModelParameters;
+use sagline_science::lithology::{Catalogue, Lithology};
 use serde::Deserialize;
 use sqlx::SqlitePool;
 
@@ -246,7 +247,7 @@ pub async fn delete_lithology(
 pub async fn study_inputs(
     db: &SqlitePool,
     study_id: i64,
-) -> Result<crate::analysis::StudyInputs, ServiceError> {
+) -> Result<sagline_science::analysis::StudyInputs, ServiceError> {
     let study = store::studies::get(db, study_id)
         .await?
         .ok_or_else(|| ServiceError::NotFound(format!("study {study_id}")))?;
@@ -269,9 +270,9 @@ pub async fn study_inputs(
     let catalogue =
         Catalogue::new(lithologies).map_err(|e| ServiceError::Invalid(e.to_string()))?;
     let points = store::sea_level::points(db, study_id).await?;
-    let sea_level = crate::science::SeaLevelCurve::new(points)
+    let sea_level = sagline_science::SeaLevelCurve::new(points)
         .map_err(|e| ServiceError::Invalid(e.to_string()))?;
-    Ok(crate::analysis::StudyInputs {
+    Ok(sagline_science::analysis::StudyInputs {
         params: study.parameters(),
         catalogue,
         sea_level,
@@ -282,7 +283,7 @@ pub async fn study_inputs(
 pub fn well_column(
     name: &str,
     rows: &[store::wells::SurfaceRow],
-) -> Result<crate::science::WellColumn, ServiceError> {
-    crate::science::WellColumn::new(name, rows.iter().map(|r| r.to_surface()).collect())
+) -> Result<sagline_science::WellColumn, ServiceError> {
+    sagline_science::WellColumn::new(name, rows.iter().map(|r| r.to_surface()).collect())
         .map_err(|e| ServiceError::Invalid(e.to_string()))
 }

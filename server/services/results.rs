@@ -3,12 +3,12 @@
 //! all cores.
 
 use super::ServiceError;
-use crate::analysis::cache::{AnalysisCache, content_key};
-use crate::analysis::{self, RiftTiming, StudyInputs, WellAnalysis};
-use crate::science::WellColumn;
+use crate::services::cache::{AnalysisCache, content_key};
 use crate::store;
 use crate::store::wells::{SurfaceRow, WellRow};
 use rayon::prelude::*;
+use sagline_science::WellColumn;
+use sagline_science::analysis::{self, RiftTiming, StudyInputs, WellAnalysis};
 use sqlx::SqlitePool;
 use std::collections::HashMap;
 use std::sync::{Arc, Mutex};

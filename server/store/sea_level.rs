@@ -1,7 +1,7 @@
 //! The study's eustatic sea-level curve.
 
 use super::StoreResult;
-use crate::science::SeaLevelPoint;
+use sagline_science::SeaLevelPoint;
 use sqlx::{SqliteConnection, SqliteExecutor};
 
 pub async fn points(db: impl SqliteExecutor<'_>, study_id: i64) -> StoreResult<Vec<SeaLevelPoint>> {

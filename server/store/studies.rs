@@ -1,7 +1,7 @@
 //! Studies and their model parameters.
 
 use super::StoreResult;
-use crate::science::ModelParameters;
+use sagline_science::ModelParameters;
 use serde::Serialize;
 use sqlx::{FromRow, SqliteExecutor};
 

@@ -1,7 +1,7 @@
 //! Wells and their surfaces (formation tops).
 
 use super::StoreResult;
-use crate::science::{Erosion, LithologyMix, MixPart, Surface, WaterDepth};
+use sagline_science::{Erosion, LithologyMix, MixPart, Surface, WaterDepth};
 use serde::Serialize;
 use sqlx::{FromRow, QueryBuilder, Sqlite, SqliteConnection, SqliteExecutor};
 

@@ -4,8 +4,6 @@ use super::auth::CSRF_FIELD;
 use super::pages::CataloguePage;
 use super::studies::{StudyInfo, load_study};
 use super::{ApiResult, AppError, AppState, HtmlError, PageResult};
-use crate::science::params::PARAMETER_RANGES;
-use crate::science::{ModelParameters, SeaLevelPoint};
 use crate::services::accounts::SignedIn;
 use crate::services::{self, LithologyEdit, ServiceError};
 use crate::store;
@@ -15,6 +13,8 @@ use axum::extract::{Path, State};
 use axum::response::{Html, IntoResponse, Redirect, Response};
 use axum::routing::{get, post, put};
 use axum::{Form, Json, Router};
+use sagline_science::params::PARAMETER_RANGES;
+use sagline_science::{ModelParameters, SeaLevelPoint};
 use serde::Serialize;
 use std::collections::HashMap;
 

@@ -2,9 +2,9 @@
 //! the caution line, so that a file that leaves the app explains itself.
 
 use super::pages::CAUTION;
-use crate::analysis::StudyInputs;
 use axum::http::header;
 use axum::response::{IntoResponse, Response};
+use sagline_science::analysis::StudyInputs;
 use serde::Serialize;
 
 /// The header block of an export.
@@ -13,7 +13,7 @@ pub struct ExportMeta {
     pub study: String,
     pub generated_at: String,
     pub generated_by: String,
-    pub parameters: crate::analysis::contract::ParametersOut,
+    pub parameters: sagline_science::analysis::contract::ParametersOut,
     pub caution: &'static str,
 }
 
@@ -26,7 +26,7 @@ impl ExportMeta {
                 .format(&time::format_description::well_known::Rfc3339)
                 .unwrap_or_else(|_| now.unix_timestamp().to_string()),
             generated_by: format!("Sagline {}", env!("CARGO_PKG_VERSION")),
-            parameters: crate::analysis::parameters_out(inputs),
+            parameters: sagline_science::analysis::parameters_out(inputs),
             caution: CAUTION,
         }
     }
@@ -249,9 +249,9 @@ pub fn download(content_type: &'static str, file_name: &str, body: String) -> Re
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::StudyInputs;
-    use crate::science::lithology::Catalogue;
-    use crate::science::{ModelParameters, SeaLevelCurve};
+    use sagline_science::analysis::StudyInputs;
+    use sagline_science::lithology::Catalogue;
+    use sagline_science::{ModelParameters, SeaLevelCurve};
 
     fn meta() -> ExportMeta {
         let inputs = StudyInputs {

@@ -29,7 +29,7 @@ pub use error::{ApiResult, AppError, HtmlError, PageResult};
 
 /// Largest request body accepted (uploads included): the tops limit plus room for the
 /// wells and sea-level files and the form fields.
-pub const MAX_BODY_BYTES: usize = crate::input::MAX_FILE_BYTES * 2 + 1024 * 1024;
+pub const MAX_BODY_BYTES: usize = sagline_science::input::MAX_FILE_BYTES * 2 + 1024 * 1024;
 
 /// What every handler can reach.
 #[derive(Clone)]
@@ -38,7 +38,7 @@ pub struct AppState {
     /// Uploaded files waiting for the user to check the preview and confirm.
     pub staging: Arc<staging::Staging>,
     /// Well analyses keyed by the content of their inputs.
-    pub cache: Arc<crate::analysis::cache::AnalysisCache>,
+    pub cache: Arc<crate::services::cache::AnalysisCache>,
     /// Whole-study results per study revision, for repeated overviews.
     pub study_memo: Arc<crate::services::results::StudyMemo>,
     /// Live change streams, one per study.
@@ -50,7 +50,7 @@ impl AppState {
         AppState {
             db,
             staging: Arc::new(staging::Staging::default()),
-            cache: Arc::new(crate::analysis::cache::AnalysisCache::default()),
+            cache: Arc::new(crate::services::cache::AnalysisCache::default()),
             events: Arc::new(live::EventHub::default()),
             study_memo: Arc::new(crate::services::results::StudyMemo::default()),
         }

@@ -3,8 +3,6 @@
 use super::exports::{self, ExportMeta};
 use super::pages::{StudiesPage, StudyPage};
 use super::{ApiResult, AppError, AppState, PageResult};
-use crate::analysis::contract::RiftEventOut;
-use crate::analysis::{self, StudyInputs};
 use crate::charts::{self, ChartSize, MapWell, RiftTimingData, RiftTimingWell, WellMapData};
 use crate::services::results::{self, WellResult};
 use crate::store;
@@ -17,6 +15,8 @@ use axum::extract::{Path, State};
 use axum::response::{Html, Redirect, Response};
 use axum::routing::get;
 use axum::{Form, Json, Router};
+use sagline_science::analysis::contract::RiftEventOut;
+use sagline_science::analysis::{self, StudyInputs};
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
 
@@ -410,7 +410,7 @@ async fn study_download(
                     Ok(a) => analysis::well_out(a),
                     Err(e) => analysis::failed_well_out(
                         &r.well.name,
-                        &crate::science::ScienceError::InvalidColumn {
+                        &sagline_science::ScienceError::InvalidColumn {
                             well: r.well.name.clone(),
                             reason: e.clone(),
                         },

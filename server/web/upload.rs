@@ -8,10 +8,6 @@ use super::pages::{PreviewPage, UploadPage};
 use super::staging::{StagedFile, StagedUpload};
 use super::studies::{StudyInfo, load_study};
 use super::{ApiResult, AppError, AppState, HtmlError, PageResult};
-use crate::input::{
-    self, ColumnMapping, DepthUnit, FileKind, InputProblem, Preview, PreviewOptions, TopsOptions,
-    WellsOptions,
-};
 use crate::services::ServiceError;
 use crate::services::accounts::SignedIn;
 use crate::services::import::{
@@ -25,6 +21,10 @@ use axum::http::StatusCode;
 use axum::response::{Html, IntoResponse, Redirect, Response};
 use axum::routing::{get, post};
 use axum::{Form, Json, Router};
+use sagline_science::input::{
+    self, ColumnMapping, DepthUnit, FileKind, InputProblem, Preview, PreviewOptions, TopsOptions,
+    WellsOptions,
+};
 use serde::Serialize;
 use std::collections::HashMap;
 

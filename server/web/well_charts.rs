@@ -1,10 +1,10 @@
 //! Mapping a well's analysis into the chart inputs of `crate::charts`.
 
-use crate::analysis::WellAnalysis;
 use crate::charts::{
     BurialChartData, BurialHorizon, BurialUnit, BurialUnitStep, HeatFlowChartData, PhaseBand,
     SubsidenceChartData, TectonicPoint, WaterDepthPoint,
 };
+use sagline_science::analysis::WellAnalysis;
 
 fn phase_bands(a: &WellAnalysis) -> Vec<PhaseBand> {
     a.interpretation

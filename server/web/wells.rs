@@ -6,7 +6,6 @@ use super::pages::WellPage;
 use super::studies::{StudyInfo, load_study};
 use super::well_charts;
 use super::{ApiResult, AppError, AppState, PageResult};
-use crate::analysis::{self, StudyInputs, WellAnalysis, contract::WellOut};
 use crate::charts::{self, ChartSize};
 use crate::services::results::{self, WellResult};
 use crate::store;
@@ -21,6 +20,7 @@ use axum::response::IntoResponse;
 use axum::response::{Html, Response};
 use axum::routing::get;
 use axum::{Json, Router};
+use sagline_science::analysis::{self, StudyInputs, WellAnalysis, contract::WellOut};
 use serde::{Deserialize, Serialize};
 
 pub fn routes() -> Router<AppState> {

@@ -1,7 +1,7 @@
 //! The lithology cell of a tops file: one catalogue name, or a mix such as
 //! `shale:60;sandstone:40` (percent, `;` between parts).
 
-use crate::science::{LithologyMix, MixPart};
+use crate::{LithologyMix, MixPart};
 use std::collections::HashMap;
 
 /// How far a mix's percentages may sum from 100 (percentage points).

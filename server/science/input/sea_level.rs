@@ -2,7 +2,7 @@
 
 use super::columns::{ColumnMapping, Columns, FileKind};
 use super::problems::{InputProblem, Problems};
-use crate::science::{SeaLevelCurve, SeaLevelPoint};
+use crate::{SeaLevelCurve, SeaLevelPoint};
 
 /// Read a sea-level file: `age_ma` (not negative) and `sea_level_m` (above present,
 /// m). Two points at one age, and numbers that are not finite, are refused.

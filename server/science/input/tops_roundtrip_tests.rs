@@ -2,7 +2,7 @@
 //! the same wells.
 
 use super::tops_tests::parse;
-use crate::science::{Erosion, LithologyMix, MixPart, Surface, WaterDepth, WellColumn};
+use crate::{Erosion, LithologyMix, MixPart, Surface, WaterDepth, WellColumn};
 use proptest::prelude::*;
 
 #[derive(Debug, Clone)]

@@ -1,9 +1,16 @@
-//! The science core: pure computation, no I/O, no async, no database.
+//! Sagline's science core: pure computation, no I/O, no async, no database.
+//!
+//! This crate holds the science (decompaction, backstripping, stretching models,
+//! heat flow), the parsing and checking of the input files ([`input`]) and the
+//! whole-well analysis with its JSON contract ([`analysis`]). It depends on no web,
+//! SQL or async crate: the compiler keeps it that way, since none is in its
+//! `Cargo.toml`.
 //!
 //! Everything here takes validated inputs and returns named result structs.
 //! Units are SI unless a name says otherwise (`_km`, `_ma`, `_myr`, `_mw_m2`).
 //! Depth is positive downward; ages are in Ma (millions of years before present).
 
+pub mod analysis;
 pub mod backstrip;
 pub mod burial;
 pub mod column;
@@ -12,6 +19,7 @@ pub mod error;
 pub mod fit;
 pub mod forward;
 pub mod heat_flow;
+pub mod input;
 pub mod lithology;
 pub mod mckenzie;
 pub mod params;

@@ -2,8 +2,8 @@
 //! (column order and case, BOM and CRLF, feet, odd headers, unknown columns).
 
 use super::*;
-use crate::science::tolerance::assert_relative;
-use crate::science::{Erosion, LithologyMix, MixPart, Surface, WaterDepth, WellColumn};
+use crate::tolerance::assert_relative;
+use crate::{Erosion, LithologyMix, MixPart, Surface, WaterDepth, WellColumn};
 
 /// An invented study catalogue, matched in any case.
 fn catalogue_name(name: &str) -> Option<String> {

@@ -7,8 +7,8 @@
 //! changed well, or a lithology it uses, gives a new key; every other well keeps its
 //! entry. Old entries are dropped when the cache is full (oldest first).
 
-use super::{StudyInputs, WellAnalysis};
-use crate::science::WellColumn;
+use sagline_science::WellColumn;
+use sagline_science::analysis::{StudyInputs, WellAnalysis};
 use std::collections::{HashMap, VecDeque};
 use std::hash::{DefaultHasher, Hash, Hasher};
 use std::sync::atomic::{AtomicU64, Ordering};

@@ -2,17 +2,16 @@
 //! study's inputs once, run every well (in parallel: wells are independent), and
 //! shape the results as the JSON contract of PRODUCT.md.
 
-pub mod cache;
 pub mod contract;
 
-use crate::science::backstrip::{self, WellHistory};
-use crate::science::fit::SubsidenceObservation;
-use crate::science::heat_flow::{self, HeatFlowPoint};
-use crate::science::lithology::Catalogue;
-use crate::science::mckenzie::Lithosphere;
-use crate::science::phases::{self, PhaseProposal};
-use crate::science::uncertainty::{self, MonteCarloSettings, StretchingUncertainty};
-use crate::science::{ModelParameters, ScienceError, SeaLevelCurve, WellColumn};
+use crate::backstrip::{self, WellHistory};
+use crate::fit::SubsidenceObservation;
+use crate::heat_flow::{self, HeatFlowPoint};
+use crate::lithology::Catalogue;
+use crate::mckenzie::Lithosphere;
+use crate::phases::{self, PhaseProposal};
+use crate::uncertainty::{self, MonteCarloSettings, StretchingUncertainty};
+use crate::{ModelParameters, ScienceError, SeaLevelCurve, WellColumn};
 use contract::{
     HistoryOut, LithologyOut, ParametersOut, PhaseOut, RangeOut, Report, RiftEventOut,
     StretchingOut, TwoLayerOut, WellOut,
@@ -229,7 +228,7 @@ pub fn parameters_out(inputs: &StudyInputs) -> ParametersOut {
     }
 }
 
-fn range(b: crate::science::Bounds) -> RangeOut {
+fn range(b: crate::Bounds) -> RangeOut {
     RangeOut {
         min: b.min,
         best: b.best,

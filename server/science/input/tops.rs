@@ -4,7 +4,7 @@ use super::columns::{ColumnMapping, Columns, DepthUnit, Field, FileKind};
 use super::lithology::LithologyNames;
 use super::problems::{InputProblem, Problems};
 use super::table::Row;
-use crate::science::{Erosion, LithologyMix, Surface, WaterDepth, WellColumn};
+use crate::{Erosion, LithologyMix, Surface, WaterDepth, WellColumn};
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
 use std::collections::hash_map::Entry;

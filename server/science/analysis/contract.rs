@@ -4,7 +4,7 @@
 //! science core's results. Field names and nesting follow PRODUCT.md exactly;
 //! additions are marked as extensions.
 
-use crate::science::ModelParameters;
+use crate::ModelParameters;
 use serde::Serialize;
 use std::collections::BTreeMap;
 
