@@ -15,7 +15,7 @@
 //!    back, so the sediment is the one the whole curve needs under the recorded water.
 //! 4. A hiatus horizon is placed at the depth of the horizon below it, so the unit
 //!    between them is absent: nothing was laid down, the basin kept subsiding and the
-//!    water deepened (SCIENCE.md 9.1).
+//!    water deepened (docs/science.md 9.1).
 //! 5. An erosional unconformity is a hiatus whose lower horizon carries an eroded
 //!    section (of the lithology of its unit below, PRODUCT.md "Input formats"), laid
 //!    down up to sea level by `eroded_at_ma` and removed before the upper horizon's age.
@@ -25,7 +25,7 @@
 //!    thicker than today's cover, so present thicknesses are those of the forward model.
 //! 6. Every surface's water depth is then set so that its backstripped tectonic
 //!    subsidence lies on the design curve (exact: water depth enters one-for-one,
-//!    SCIENCE.md 3). This places the inserted horizons and absorbs the over-compaction.
+//!    docs/science.md 3). This places the inserted horizons and absorbs the over-compaction.
 //! 7. Noise, seeded: each recorded water-depth range shifts by a normal draw (the sea
 //!    floor's does not), each depth by a few metres (never more than a fifth of the
 //!    thinner neighbouring unit; surfaces at one depth move together). Depths are then

@@ -1,15 +1,13 @@
 //! Sagline: well-by-well subsidence analysis for sedimentary basins.
 //!
 //! The science core, the input parsing and the analysis contract are the crate
-//! `sagline_science` (server/science/); everything here depends on it, never the
-//! other way round.
+//! `sagline_science` (server/science/), and the charts the crate `sagline_charts`
+//! (server/charts/); everything here depends on them, never the other way round.
 
 /// Accounts and access without I/O: roles, the access rules, password hashing, session tokens.
 pub mod auth;
 /// The `sagline analyze` batch command.
 pub mod batch;
-/// Server-side SVG charts (subsidence, burial, heat flow, well map, rift timing): data in, SVG out.
-pub mod charts;
 /// The command line.
 pub mod cli;
 /// The demo study, built from the files in `demo-db/`.

@@ -38,7 +38,7 @@ fn ramp(onset: f64, end: f64, age: f64) -> f64 {
 }
 
 /// Shale, sandstone and a 70:30 shale-sandstone mix in turn (catalogue names of
-/// SCIENCE.md 1.2).
+/// docs/science.md 1.2).
 fn lithology(i: usize) -> LithologyMix {
     match i % 3 {
         0 => LithologyMix::single("shale"),
@@ -216,7 +216,7 @@ fn well<'a>(report: &'a Value, name: &str) -> &'a Value {
 
 /// Present-day tectonic subsidence from the report's own numbers by the Airy balance,
 /// sea level at present 0: Y = S (rho_m - rho_s)/(rho_m - rho_w) + Wd
-/// (SCIENCE.md 3.1, Steckler & Watts (1978) form).
+/// (docs/science.md 3.1, Steckler & Watts (1978) form).
 fn airy_present_day(report: &Value, well_name: &str) -> (f64, f64) {
     let p = &report["parameters"];
     let (rho_m, rho_w) = (
@@ -249,7 +249,7 @@ fn valid_tops_give_the_json_contract() {
     let tops = ws.file("kelda_tops.csv", &forward_tops(&[KELDA_1, KELDA_2]));
     let report = success_json(&ws.analyze(&[&tops]));
 
-    // `parameters`: every field PRODUCT.md names, with the defaults of SCIENCE.md 4.1
+    // `parameters`: every field PRODUCT.md names, with the defaults of docs/science.md 4.1
     // (McKenzie 1978 table) where it gives one.
     let p = &report["parameters"];
     for (field, published) in [
@@ -257,12 +257,12 @@ fn valid_tops_give_the_json_contract() {
         ("crust_density_kg_m3", Some(2800.0)),
         ("water_density_kg_m3", Some(1000.0)),
         ("lithosphere_thickness_m", Some(125_000.0)),
-        // SCIENCE.md 4.1: tc is "variable"; 35 km is its check crust.
+        // docs/science.md 4.1: tc is "variable"; 35 km is its check crust.
         ("crust_thickness_m", Some(35_000.0)),
         ("asthenosphere_temperature_c", Some(1333.0)),
         ("thermal_expansion_per_c", Some(3.28e-5)),
         ("thermal_diffusivity_m2_s", Some(8e-7)),
-        // SCIENCE.md 4.1 implies k = 3.141; the default is a round value (section 12).
+        // docs/science.md 4.1 implies k = 3.141; the default is a round value (section 12).
         ("thermal_conductivity_w_m_k", None),
     ] {
         let value = number(&p[field], field);
@@ -275,7 +275,7 @@ fn valid_tops_give_the_json_contract() {
         .iter()
         .find(|l| l["name"] == "shale")
         .expect("shale in the catalogue");
-    // SCIENCE.md 1.2, Sclater & Christie (1980): shale phi0 0.63, c 0.51 /km; grain
+    // docs/science.md 1.2, Sclater & Christie (1980): shale phi0 0.63, c 0.51 /km; grain
     // density 2720 [memory]; the same numbers as PRODUCT.md's example.
     assert_relative(
         number(&shale["surface_porosity"], "phi0"),
@@ -461,7 +461,7 @@ fn a_params_file_changes_a_parameter_and_it_is_echoed() {
         assert_eq!(p[field], default["parameters"][field], "{field} unchanged");
     }
 
-    // The changed densities are the ones used: the Airy balance of SCIENCE.md 3.1 with
+    // The changed densities are the ones used: the Airy balance of docs/science.md 3.1 with
     // 3300 / 1030 holds on the new output, and not on the default output's sediment.
     let (reported, expected) = airy_present_day(&changed, "Kelda-1");
     assert_relative(

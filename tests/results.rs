@@ -241,7 +241,7 @@ async fn editing_a_model_parameter_recomputes_every_well() {
     render(&app, study, false).await;
     let before = histories(&app, study).await;
 
-    // The mantle density enters every well's Airy backstripping (SCIENCE.md 3.1).
+    // The mantle density enters every well's Airy backstripping (docs/science.md 3.1).
     let answer = app
         .put_json(
             &format!("/api/studies/{study}/parameters"),

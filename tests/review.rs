@@ -17,7 +17,7 @@ use serde_json::{Value, json};
 use std::time::Duration;
 
 /// Equilibrium surface heat flow K T1 / a with k = 3.1 W/m/K (the default conductivity):
-/// SCIENCE.md 4.4, check-value table, 33.0584 mW/m².
+/// docs/science.md 4.4, check-value table, 33.0584 mW/m².
 const EQUILIBRIUM_HEAT_FLOW: f64 = 33.0584;
 /// A rift timing at two of the trough well's surface ages, other than the proposal's
 /// (the proposal puts the rift end at 145 Ma): onset at the top of the rift sand,
@@ -102,8 +102,8 @@ fn saved(answer: &Answer) -> Value {
 
 /// The uniform fit follows the team's timing: its rift onset and end are the pick,
 /// the phases are cut there, and the heat flow is at equilibrium before the rift and
-/// beta times equilibrium at its end (SCIENCE.md 4.4, F(0+) = beta K T1 / a; the rift
-/// taken as instantaneous at its end is SCIENCE.md 6, common practice).
+/// beta times equilibrium at its end (docs/science.md 4.4, F(0+) = beta K T1 / a; the rift
+/// taken as instantaneous at its end is docs/science.md 6, common practice).
 fn assert_fitted_to(well: &Value, (onset, end): (f64, f64)) -> f64 {
     let st = stretching(well);
     assert_eq!(st["origin"], "team pick", "{st}");

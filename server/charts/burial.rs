@@ -341,7 +341,7 @@ fn draw_horizons(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::charts::test_support::*;
+    use crate::test_support::*;
 
     #[test]
     fn one_horizon_line_per_horizon() {

@@ -102,7 +102,7 @@ fn draw(data: &HeatFlowChartData, body: &Area<'_>, tags: &mut Tags) -> DrawResul
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::charts::test_support::*;
+    use crate::test_support::*;
 
     #[test]
     fn the_equilibrium_line_sits_at_its_value() {

@@ -184,7 +184,7 @@ fn bar_half_height(pitch_px: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::charts::test_support::*;
+    use crate::test_support::*;
 
     #[test]
     fn one_bar_per_well_sorted_by_onset_spanning_its_ages() {

@@ -252,7 +252,7 @@ pub(crate) fn draw_phase_bands(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::charts::test_support::*;
+    use crate::test_support::*;
 
     #[test]
     fn phase_bands_sit_at_the_x_positions_of_their_ages() {

@@ -386,7 +386,7 @@ fn draw_colour_bar(side: &Area<'_>, tags: &mut Tags, (lo, hi): (f64, f64)) -> Dr
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::charts::test_support::*;
+    use crate::test_support::*;
 
     #[test]
     fn the_colour_bar_spans_the_beta_range_of_the_wells_shown() {
@@ -426,8 +426,8 @@ mod tests {
                 .unwrap()
                 .to_string()
         };
-        assert_eq!(fill_of(lo), crate::charts::sequential_colour_hex(0.0));
-        assert_eq!(fill_of(hi), crate::charts::sequential_colour_hex(1.0));
+        assert_eq!(fill_of(lo), crate::sequential_colour_hex(0.0));
+        assert_eq!(fill_of(hi), crate::sequential_colour_hex(1.0));
     }
 
     #[test]

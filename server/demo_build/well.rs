@@ -88,7 +88,7 @@ struct Planned {
 }
 
 /// Water depth (m, negative = land) as its term in the Airy balance: one-for-one under
-/// water, amplified like sediment for land elevation (SCIENCE.md 3.1).
+/// water, amplified like sediment for land elevation (docs/science.md 3.1).
 fn depth_term(water_depth_m: f64, amplification: f64) -> f64 {
     if water_depth_m >= 0.0 {
         water_depth_m
@@ -422,7 +422,7 @@ impl Context<'_> {
 
     /// Set every surface's water depth so that its backstripped best tectonic subsidence
     /// lies on the target curve: exact, as an error in water depth passes into the
-    /// subsidence one-for-one (SCIENCE.md 3, 9.1). Needed where the forward model was
+    /// subsidence one-for-one (docs/science.md 3, 9.1). Needed where the forward model was
     /// left: inserted surfaces, and units over-compacted under an eroded section.
     fn correct_water_depths(
         &self,

@@ -1,5 +1,5 @@
 //! Airy backstripping of a well: the restored column and the tectonic (water-loaded)
-//! subsidence at every surface age, oldest first (SCIENCE.md 3; PRODUCT.md "Computation").
+//! subsidence at every surface age, oldest first (docs/science.md 3; PRODUCT.md "Computation").
 //!
 //! The column below each surface is restored to the depositional surface by
 //! decompaction ([`super::burial`]); its sediment load is then removed by Airy isostasy
@@ -13,7 +13,7 @@ use super::{ModelParameters, ScienceError};
 use serde::Serialize;
 
 /// How much a water column (or land elevation) loads the basement when sediment is
-/// replaced by water, `rho_m / (rho_m - rho_w)` (SCIENCE.md 3.1): 1.42918 for the default
+/// replaced by water, `rho_m / (rho_m - rho_w)` (docs/science.md 3.1): 1.42918 for the default
 /// mantle of 3330 kg m^-3 and water of 1000 kg m^-3.
 pub fn water_load_amplification(params: &ModelParameters) -> f64 {
     params.mantle_density_kg_m3 / (params.mantle_density_kg_m3 - params.water_density_kg_m3)
@@ -23,10 +23,10 @@ pub fn water_load_amplification(params: &ModelParameters) -> f64 {
 /// level (m), by Airy isostasy:
 ///
 /// `Y = S (rho_m - rho_s)/(rho_m - rho_w) + Wd - dSL rho_m/(rho_m - rho_w)` for a surface
-/// under water (Steckler & Watts 1978, SCIENCE.md 3.1; identical to the expanded
+/// under water (Steckler & Watts 1978, docs/science.md 3.1; identical to the expanded
 /// Sclater & Christie 1980 form), and for a surface standing at elevation `E = -Wd` above
 /// sea level `Y = S (rho_m - rho_s)/(rho_m - rho_w) - (E + dSL) rho_m/(rho_m - rho_w)`
-/// (derived by the same Airy balance with air of density 0; SCIENCE.md 3.1 gives it for
+/// (derived by the same Airy balance with air of density 0; docs/science.md 3.1 gives it for
 /// dSL = 0, and both forms meet at Wd = 0).
 ///
 /// Inputs: decompacted sediment thickness S (m) and its bulk density rho_s (kg m^-3; not
@@ -34,7 +34,7 @@ pub fn water_load_amplification(params: &ModelParameters) -> f64 {
 /// level dSL above present (m). Densities rho_m and rho_w come from `params`.
 /// Assumes local (Airy) compensation and a water-filled reference column with its surface
 /// at present sea level. A negative result means the unloaded basement would stand above
-/// present sea level, where the water load it assumes would be absent (SCIENCE.md 3.1 edge case).
+/// present sea level, where the water load it assumes would be absent (docs/science.md 3.1 edge case).
 pub fn airy_tectonic_subsidence(
     sediment_thickness_m: f64,
     sediment_density_kg_m3: f64,
@@ -163,7 +163,7 @@ impl WellHistory {
     }
 }
 
-/// Backstrip one well (SCIENCE.md 2, 3, 9.1; PRODUCT.md "Computation" 1-2).
+/// Backstrip one well (docs/science.md 2, 3, 9.1; PRODUCT.md "Computation" 1-2).
 ///
 /// For every surface age, and every `eroded_at_ma`, oldest first: restore the column
 /// below that age's depositional surface by decompaction (solid thickness conserved,
@@ -298,7 +298,7 @@ mod tests {
         }
     }
 
-    /// The synthetic well of SCIENCE.md 3.3 (invented names), its sea floor 200 m below
+    /// The synthetic well of docs/science.md 3.3 (invented names), its sea floor 200 m below
     /// sea level: shale 0-800 m (20-0 Ma), sandstone 800-1800 m (60-20 Ma), shale
     /// 1800-3000 m (100-60 Ma) below the sea floor; water depths 200, 100, 50, 0 m.
     fn synthetic_well() -> WellColumn {
@@ -321,7 +321,7 @@ mod tests {
     }
 
     fn synthetic_sea_level() -> SeaLevelCurve {
-        // SCIENCE.md 3.3: dSL(0) = 0, dSL(20) = +20, dSL(60) = +50, dSL(100) = 0 m.
+        // docs/science.md 3.3: dSL(0) = 0, dSL(20) = +20, dSL(60) = +50, dSL(100) = 0 m.
         let point = |age_ma, sea_level_m| SeaLevelPoint {
             age_ma,
             sea_level_m,
@@ -347,7 +347,7 @@ mod tests {
 
     #[test]
     fn water_load_amplification_for_two_mantle_densities() {
-        // SCIENCE.md 3.1: rho_m/(rho_m - rho_w) = 1.42918 for 3330 and 1.43478 for 3300.
+        // docs/science.md 3.1: rho_m/(rho_m - rho_w) = 1.42918 for 3330 and 1.43478 for 3300.
         let mut params = ModelParameters::default();
         assert_printed(water_load_amplification(&params), 1.42918, 5, "rho_m 3330");
         params.mantle_density_kg_m3 = 3300.0;
@@ -356,7 +356,7 @@ mod tests {
 
     #[test]
     fn a_subaerial_surface_loads_with_the_amplified_elevation() {
-        // SCIENCE.md 3.1 [derived]: S = 1000, rho_s = 2300, E = 100 gives Y = 299.142 m;
+        // docs/science.md 3.1 [derived]: S = 1000, rho_s = 2300, E = 100 gives Y = 299.142 m;
         // putting Wd = -E into the marine form would give the wrong 342.060 m.
         let params = ModelParameters::default();
         let y = airy_tectonic_subsidence(1000.0, 2300.0, -100.0, 0.0, &params);
@@ -367,7 +367,7 @@ mod tests {
 
     #[test]
     fn the_steckler_watts_and_sclater_christie_forms_agree() {
-        // SCIENCE.md 3.1: the expanded SC80 form
+        // docs/science.md 3.1: the expanded SC80 form
         // Y = S(rho_m - rho_s)/(rho_m - rho_w) - dSL rho_w/(rho_m - rho_w) + (Wd - dSL)
         // is algebraically the SW78 form.
         let params = ModelParameters::default();
@@ -390,7 +390,7 @@ mod tests {
 
     #[test]
     fn the_synthetic_well_matches_the_published_backstrip() {
-        // SCIENCE.md 3.3 (computed with S&C 1980 parameters, rho_m 3330, rho_w 1000):
+        // docs/science.md 3.3 (computed with S&C 1980 parameters, rho_m 3330, rho_w 1000):
         // (age, S, rho_s, Y with sea level, Y with dSL = 0).
         let expected = [
             (100.0, 0.0, None, 0.0, 0.0),
@@ -418,7 +418,7 @@ mod tests {
                 &what("Y, dSL = 0"),
             );
         }
-        // SCIENCE.md 3.3: at 20 Ma the layers lie at (0, 1131.89) and (1131.89, 2444.55).
+        // docs/science.md 3.3: at 20 Ma the layers lie at (0, 1131.89) and (1131.89, 2444.55).
         let at_20 = &with_sea_level.steps[2];
         assert_printed(
             at_20.units[1].top_m,
@@ -438,7 +438,7 @@ mod tests {
             "Base Lark shale"
         );
         assert_eq!(with_sea_level.lithology(&at_20.units[1]), "shale");
-        // SCIENCE.md 3.3 solid thicknesses: L1 386.1504, L2 653.9992, L3 974.2114 m.
+        // docs/science.md 3.3 solid thicknesses: L1 386.1504, L2 653.9992, L3 974.2114 m.
         let present = with_sea_level.steps.last().unwrap();
         for (unit, solid) in present.units.iter().zip([386.1504, 653.9992, 974.2114]) {
             let thickness = unit.base_m - unit.top_m;
@@ -493,7 +493,7 @@ mod tests {
         assert_eq!((section.top_m, section.base_m), (0.0, 500.0));
         assert_eq!(eroded.horizon_depth_m(2), Some(500.0));
         // Under 500 m of eroded section the Lark shale is still shallower than today, so
-        // it keeps its solid thickness, 974.2114 m (SCIENCE.md 3.3 L3), and nothing is
+        // it keeps its solid thickness, 974.2114 m (docs/science.md 3.3 L3), and nothing is
         // over-compacted.
         let lark = eroded.units[1];
         assert_eq!(lark.top_m, 500.0);
@@ -513,7 +513,7 @@ mod tests {
 
     #[test]
     fn a_hiatus_changes_y_only_by_water_depth_and_sea_level() {
-        // SCIENCE.md 9.1: across a hiatus dY = dWd - d(dSL) rho_m/(rho_m - rho_w).
+        // docs/science.md 9.1: across a hiatus dY = dWd - d(dSL) rho_m/(rho_m - rho_w).
         let well = WellColumn::new(
             "Plover-2",
             vec![
@@ -597,7 +597,7 @@ mod tests {
             let present = history.steps.last().unwrap();
             prop_assert!((present.sediment_thickness_m - (well.base().depth_m - well.top().depth_m)).abs() < 1e-9);
             // Solid thickness is conserved through restoration wherever no unit was
-            // buried deeper than today (SCIENCE.md 2.1).
+            // buried deeper than today (docs/science.md 2.1).
             if erosions == 0 {
                 for step in &history.steps {
                     for u in &step.units {

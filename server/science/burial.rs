@@ -1,8 +1,8 @@
 //! Burial history: a well's column restored to the depositional surface of every
-//! surface age and every erosion age, oldest first (SCIENCE.md 2.2, 9.1).
+//! surface age and every erosion age, oldest first (docs/science.md 2.2, 9.1).
 //!
-//! Approach. Each unit's grain (solid) thickness is conserved (SCIENCE.md 2.1), and
-//! compaction is irreversible (Wangen 2010 §5; SCIENCE.md 9.1): at any age a unit is as
+//! Approach. Each unit's grain (solid) thickness is conserved (docs/science.md 2.1), and
+//! compaction is irreversible (Wangen 2010 §5; docs/science.md 9.1): at any age a unit is as
 //! thick as it would be at `max(current burial, deepest burial so far)`. A unit that lies
 //! shallower today than at some past age (under an eroded section) had its present
 //! thickness fixed at that deepest burial, so its solid thickness is taken from its
@@ -13,7 +13,7 @@
 //! is restored unit by unit, top down, across all ages at once: the deepest past burial
 //! of a unit is known before its solid thickness is needed, and no iteration is required.
 //! Without erosion a unit is never buried deeper than today (burial only grows as
-//! sediment accumulates, SCIENCE.md 2.2), and this reduces to plain decompaction.
+//! sediment accumulates, docs/science.md 2.2), and this reduces to plain decompaction.
 
 use super::ScienceError;
 use super::backstrip::{HorizonDepth, RestoredUnit};
@@ -61,7 +61,7 @@ pub struct BurialHistory {
 /// Restore `well` at every surface age and erosion age, oldest first (approach in the
 /// module note). The present column is the well as given (depths below the present
 /// depositional surface); each unit's lithology is resolved once, by `catalogue`.
-/// The pores hold fluid of `pore_fluid_density_kg_m3` (SCIENCE.md 2.4).
+/// The pores hold fluid of `pore_fluid_density_kg_m3` (docs/science.md 2.4).
 ///
 /// Errors: an unresolvable lithology ([`Catalogue::resolve`]); a failed decompaction
 /// solve (not expected for a valid column).
@@ -306,7 +306,7 @@ pub(crate) mod tests {
                 .unwrap()
         };
         // At 5 Ma the unit lay at 2000-3000 m under the eroded section, so its present
-        // 1000 m holds the solid of shale at 2000-3000 m: SCIENCE.md 2.3 (S&C 1980
+        // 1000 m holds the solid of shale at 2000-3000 m: docs/science.md 2.3 (S&C 1980
         // parameters) gives a mean porosity of 0.1780 there, and 1475.197 m once restored
         // to the surface at 10 Ma, before the eroded section was laid on it.
         assert_printed(
@@ -435,7 +435,7 @@ pub(crate) mod tests {
             };
             for step in &history.steps {
                 for u in step.units.iter().filter(|u| !u.eroded_section) {
-                    // SCIENCE.md 9.1: compaction is irreversible, and burial only
+                    // docs/science.md 9.1: compaction is irreversible, and burial only
                     // shallows a unit by erosion, so no restored unit is thinner than today.
                     prop_assert!(u.base_m - u.top_m >= today(u.unit) - 1e-6);
                 }
@@ -471,7 +471,7 @@ pub(crate) mod tests {
             for k in 0..well.surfaces.len() - 1 {
                 let (upper, lower) = (&well.surfaces[k], &well.surfaces[k + 1]);
                 if upper.depth_m == lower.depth_m && lower.erosion.is_none() {
-                    // SCIENCE.md 9.1: across a hiatus S and the compaction state are
+                    // docs/science.md 9.1: across a hiatus S and the compaction state are
                     // constant (to the depth-solve tolerance: today's column is measured,
                     // older ones are solved).
                     let (younger, older) = (step_of(k), step_of(k + 1));

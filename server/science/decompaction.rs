@@ -1,5 +1,5 @@
 //! Decompaction: moving a unit to a new burial depth while conserving its grain
-//! (solid) volume, with the exponential porosity law (SCIENCE.md 2).
+//! (solid) volume, with the exponential porosity law (docs/science.md 2).
 //!
 //! Depths here are below the sediment surface (the depositional surface), positive
 //! down, in metres: `0 <= top <= base`. These functions run about N^2 times per well
@@ -9,7 +9,7 @@ use super::ScienceError;
 use super::lithology::Lithology;
 use super::tolerance::DEPTH_SOLVE_M;
 
-/// Newton from the upper bound converges in 4-5 steps (SCIENCE.md 2.3); bisection
+/// Newton from the upper bound converges in 4-5 steps (docs/science.md 2.3); bisection
 /// fallback steps halve the bracket, so this many cannot fail for finite inputs.
 const MAX_SOLVE_STEPS: usize = 200;
 
@@ -18,13 +18,13 @@ const MAX_SOLVE_STEPS: usize = 200;
 /// `Hs = (base - top) - (phi0/c)(exp(-c top) - exp(-c base))`, and
 /// `Hs = (base - top)(1 - phi0)` when c = 0.
 ///
-/// Assumes no grain compression or cementation (SC80; Allen & Allen; SCIENCE.md 2.1).
+/// Assumes no grain compression or cementation (SC80; Allen & Allen; docs/science.md 2.1).
 /// The pore term is evaluated with `exp_m1` so thin units and small c keep full precision.
 pub fn solid_thickness(lithology: &Lithology, top_m: f64, base_m: f64) -> f64 {
     (base_m - top_m) - pore_thickness(lithology, top_m, base_m)
 }
 
-/// Pore-water thickness `Hw = (phi0/c)(exp(-c top) - exp(-c base))` (SCIENCE.md 2.1).
+/// Pore-water thickness `Hw = (phi0/c)(exp(-c top) - exp(-c base))` (docs/science.md 2.1).
 fn pore_thickness(lithology: &Lithology, top_m: f64, base_m: f64) -> f64 {
     let c = lithology.compaction_per_m();
     let thickness = base_m - top_m;
@@ -37,13 +37,13 @@ fn pore_thickness(lithology: &Lithology, top_m: f64, base_m: f64) -> f64 {
 
 /// Thickness (m) of a unit of solid thickness `solid_m` whose top is moved to `new_top_m`
 /// below the sediment surface: the root T of the general decompaction equation
-/// `T = Hs + (phi(top)/c)(1 - exp(-c T))` (Allen & Allen; SCIENCE.md 2.1, 2.2).
+/// `T = Hs + (phi(top)/c)(1 - exp(-c T))` (Allen & Allen; docs/science.md 2.1, 2.2).
 ///
 /// Solved by Newton's method from the upper bound `Hs / (1 - phi(top))`. The function
 /// `f(T) = T - (phi(top)/c)(1 - exp(-c T)) - Hs` is increasing and convex, so Newton from
 /// the right never overshoots; a bisection step on the bracket `[Hs, upper bound]` guards
 /// against rounding all the same. Converged to [`DEPTH_SOLVE_M`] (1e-6 m, as
-/// SCIENCE.md 2.2 asks). Exact special cases: phi0 = 0 gives `Hs`; c = 0 gives
+/// docs/science.md 2.2 asks). Exact special cases: phi0 = 0 gives `Hs`; c = 0 gives
 /// `Hs / (1 - phi0)`.
 ///
 /// Errors: [`ScienceError::OutOfRange`] for a negative or non-finite top or solid thickness;
@@ -60,7 +60,7 @@ pub fn decompacted_thickness(
 /// below the general upper bound: a backstrip passes the unit's thickness at its previous,
 /// shallower position, which is already close (burial only thins a unit). A start on the
 /// wrong side of the root costs one extra step and no accuracy: the bracket keeps the solve
-/// safe. Same formula, assumptions, errors and reference (SCIENCE.md 2.2).
+/// safe. Same formula, assumptions, errors and reference (docs/science.md 2.2).
 pub fn decompacted_thickness_from(
     lithology: &Lithology,
     new_top_m: f64,
@@ -134,7 +134,7 @@ pub fn decompacted_thickness_from(
 
 /// Base depth (m) of a unit of solid thickness `solid_m` restored with its top at
 /// `new_top_m` below the sediment surface: `new_top_m +` [`decompacted_thickness`]
-/// (SCIENCE.md 2.2). Same method, assumptions and errors.
+/// (docs/science.md 2.2). Same method, assumptions and errors.
 pub fn decompacted_base(
     lithology: &Lithology,
     new_top_m: f64,
@@ -144,7 +144,7 @@ pub fn decompacted_base(
 }
 
 /// Mean porosity of a unit between `top_m` and `base_m` below the sediment surface,
-/// `phibar = Hw / (base - top)` (SCIENCE.md 2.1); the porosity at the top for a unit of
+/// `phibar = Hw / (base - top)` (docs/science.md 2.1); the porosity at the top for a unit of
 /// zero thickness (the limit).
 pub fn mean_porosity(lithology: &Lithology, top_m: f64, base_m: f64) -> f64 {
     let thickness = base_m - top_m;
@@ -156,7 +156,7 @@ pub fn mean_porosity(lithology: &Lithology, top_m: f64, base_m: f64) -> f64 {
 }
 
 /// Bulk density (kg m^-3) of a fluid-saturated unit of mean porosity `mean_porosity`:
-/// `rho = phibar rho_p + (1 - phibar) rho_g` (SCIENCE.md 2.4), with the pore fluid
+/// `rho = phibar rho_p + (1 - phibar) rho_g` (docs/science.md 2.4), with the pore fluid
 /// density `rho_p` (normally the water density of the model parameters).
 pub fn layer_density(
     lithology: &Lithology,
@@ -177,8 +177,8 @@ mod tests {
         Catalogue::published_defaults().get(name).unwrap().clone()
     }
 
-    /// SCIENCE.md 2.3 rows: (lithology, Hs, decompacted thickness, mean phi before, after).
-    /// Computed from the Sclater & Christie (1980) parameters of SCIENCE.md 1.2.
+    /// docs/science.md 2.3 rows: (lithology, Hs, decompacted thickness, mean phi before, after).
+    /// Computed from the Sclater & Christie (1980) parameters of docs/science.md 1.2.
     const WORKED: [(&str, f64, f64, f64, f64); 4] = [
         ("shale", 822.044, 1475.197, 0.1780, 0.4428),
         ("sandstone", 749.755, 1280.079, 0.2502, 0.4143),
@@ -191,10 +191,10 @@ mod tests {
         for (name, hs, thickness, phi_before, phi_after) in WORKED {
             let l = lith(name);
             let solid = solid_thickness(&l, 2000.0, 3000.0);
-            // SCIENCE.md 2.3, S&C (1980) parameters: solid thickness of 2000-3000 m.
+            // docs/science.md 2.3, S&C (1980) parameters: solid thickness of 2000-3000 m.
             assert_printed(solid, hs, 3, &format!("{name} Hs"));
             let base = decompacted_base(&l, 0.0, solid).unwrap();
-            // SCIENCE.md 2.3: decompacted thickness at the surface.
+            // docs/science.md 2.3: decompacted thickness at the surface.
             assert_printed(base, thickness, 3, &format!("{name} decompacted thickness"));
             assert_printed(
                 mean_porosity(&l, 2000.0, 3000.0),
@@ -213,7 +213,7 @@ mod tests {
 
     #[test]
     fn the_unresolved_shaly_sandstone_coefficient_gives_the_other_check_value() {
-        // SCIENCE.md 2.3 last row: c = 1/2464 m (Wangen's printed z0), Hs 795.579 m,
+        // docs/science.md 2.3 last row: c = 1/2464 m (Wangen's printed z0), Hs 795.579 m,
         // decompacted 1390.712 m.
         let l =
             Lithology::new("shaly sandstone (z0 2464 m)", 0.56, 1000.0 / 2464.0, 2680.0).unwrap();
@@ -229,7 +229,7 @@ mod tests {
 
     #[test]
     fn the_shale_layer_moved_to_a_500_m_top() {
-        // SCIENCE.md 2.3 further check: base 1781.291 m, thickness 1281.291 m.
+        // docs/science.md 2.3 further check: base 1781.291 m, thickness 1281.291 m.
         let l = lith("shale");
         let solid = solid_thickness(&l, 2000.0, 3000.0);
         assert_printed(
@@ -248,7 +248,7 @@ mod tests {
 
     #[test]
     fn a_mixed_layer_by_averaged_parameters() {
-        // SCIENCE.md 1.4 method (a): 60 % shale / 40 % sandstone at 2000-3000 m moved to
+        // docs/science.md 1.4 method (a): 60 % shale / 40 % sandstone at 2000-3000 m moved to
         // the surface: 1406.66 m.
         let catalogue = Catalogue::published_defaults();
         let mix = crate::LithologyMix {
@@ -270,8 +270,8 @@ mod tests {
 
     #[test]
     fn bulk_density_weights_grains_and_pore_water() {
-        // SCIENCE.md 2.4: a unit with no pores has its grain density (salt: 2160 [memory],
-        // SCIENCE.md 1.3); one that were all pore would have the fluid's density.
+        // docs/science.md 2.4: a unit with no pores has its grain density (salt: 2160 [memory],
+        // docs/science.md 1.3); one that were all pore would have the fluid's density.
         let shale = lith("shale");
         assert_eq!(layer_density(&lith("salt"), 0.0, 1000.0), 2160.0);
         assert_relative(
@@ -290,7 +290,7 @@ mod tests {
 
     #[test]
     fn special_cases_are_exact() {
-        // SCIENCE.md 2.2: phi0 = 0 keeps the thickness; c = 0 gives Hs / (1 - phi0).
+        // docs/science.md 2.2: phi0 = 0 keeps the thickness; c = 0 gives Hs / (1 - phi0).
         let salt = lith("salt");
         assert_eq!(solid_thickness(&salt, 1234.5, 1734.5), 500.0);
         assert_eq!(decompacted_base(&salt, 10.0, 500.0).unwrap(), 510.0);
@@ -363,7 +363,7 @@ mod tests {
         ) {
             let solid = solid_thickness(&l, top, top + thickness);
             let new_base = decompacted_base(&l, new_top, solid).unwrap();
-            // Property of SCIENCE.md 2.1: solid thickness is the same at both positions.
+            // Property of docs/science.md 2.1: solid thickness is the same at both positions.
             prop_assert!((solid_thickness(&l, new_top, new_base) - solid).abs() < 1e-6);
             // Shallower means thicker, deeper means thinner (porosity falls with depth).
             let new_thickness = new_base - new_top;
@@ -393,7 +393,7 @@ mod tests {
             top in 0.0..8000.0f64,
             solid in 0.0..3000.0f64,
         ) {
-            // SCIENCE.md 2.2 special cases, exact in floating point.
+            // docs/science.md 2.2 special cases, exact in floating point.
             let none = Lithology::new("phi0 = 0", 0.0, 0.5, 2200.0).unwrap();
             prop_assert_eq!(decompacted_thickness(&none, top, solid).unwrap(), solid);
             let constant = Lithology::new("c = 0", phi0, 0.0, 2650.0).unwrap();

@@ -1,14 +1,14 @@
 //! Least-squares fits of stretching models to a well's tectonic-subsidence series.
 //!
-//! Model curve of one rift event (SCIENCE.md 6, approach 1: instantaneous stretching
+//! Model curve of one rift event (docs/science.md 6, approach 1: instantaneous stretching
 //! placed at the rift end): flat at Y0 before the rift onset, a linear ramp of the
 //! initial subsidence Si from onset to end, then `Y0 + Si + S_T(t)` with t = rift end
 //! age - age (Myr). Y0 is linear given the factors and is solved in closed form (the
 //! mean residual); the factors are found by a scan then Brent's method in
 //! u = 1 - 1/factor, which maps [1, inf) onto [0, 1). Thermal subsidence is always the
-//! full series (SCIENCE.md 4.3).
+//! full series (docs/science.md 4.3).
 //!
-//! Two events (SCIENCE.md 8.2 item 4) are superposed, an approximation documented in
+//! Two events (docs/science.md 8.2 item 4) are superposed, an approximation documented in
 //! [`UniformFit`]. The analysis layer turns backstrip steps into [`SubsidenceObservation`]s.
 
 use super::mckenzie::Lithosphere;
@@ -64,9 +64,9 @@ pub struct RiftEvent {
 /// beta1 and assumed re-equilibrated, so its Si and S_T are those of a single event of
 /// its own beta2 scaled by 1/beta1 (a fraction 1/beta1 of the original column is left
 /// to stretch). Total subsidence at t -> inf is then exactly that of one event of
-/// beta1 beta2, the cumulative factor of W10 §7.9 (SCIENCE.md 6); the first event's
+/// beta1 beta2, the cumulative factor of W10 §7.9 (docs/science.md 6); the first event's
 /// thermal transient is superposed unchanged. A second event before the first has
-/// decayed really needs a numerical thermal model (SCIENCE.md 6, 8.2 item 4).
+/// decayed really needs a numerical thermal model (docs/science.md 6, 8.2 item 4).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct UniformFit {
     pub events: Vec<RiftEvent>,
@@ -173,7 +173,7 @@ fn check_timing(onset_ma: f64, end_ma: f64) -> Result<(), ScienceError> {
 
 /// Fit beta and Y0 of one uniform event with the given onset and end (Ma) to one
 /// curve by least squares. Errors: a bad series or timing.
-/// McKenzie (1978); SCIENCE.md 4.2, 4.3, 6.
+/// McKenzie (1978); docs/science.md 4.2, 4.3, 6.
 pub fn fit_uniform(
     lithosphere: &Lithosphere,
     observations: &[SubsidenceObservation],
@@ -213,7 +213,7 @@ pub fn fit_uniform_events(
 }
 
 /// Fit delta, beta and Y0 of one two-layer event with the given onset and end (Ma).
-/// Royden & Keen (1980); SCIENCE.md 5, 6.
+/// Royden & Keen (1980); docs/science.md 5, 6.
 pub fn fit_two_layer(
     lithosphere: &Lithosphere,
     observations: &[SubsidenceObservation],

@@ -14,7 +14,7 @@ pub(crate) fn exact(age_ma: f64, y: f64) -> SubsidenceObservation {
     }
 }
 
-/// SCIENCE.md 8.2 synthetic classifier curve, as printed: pre-rift 200-150 Ma at 0,
+/// docs/science.md 8.2 synthetic classifier curve, as printed: pre-rift 200-150 Ma at 0,
 /// syn-rift to Si(beta 2) = 2137.134 m at 130 Ma, then Si + S_T (full series, tau 62.7085).
 pub(crate) fn classifier_curve() -> Vec<SubsidenceObservation> {
     let printed = [
@@ -44,7 +44,7 @@ pub(crate) fn classifier_curve() -> Vec<SubsidenceObservation> {
 
 #[test]
 fn the_classifier_curve_fits_beta_two_with_known_timing() {
-    // SCIENCE.md 8.2: the curve was built with beta = 2, onset 150, end 130 Ma.
+    // docs/science.md 8.2: the curve was built with beta = 2, onset 150, end 130 Ma.
     let l = mckenzie();
     let fit = fit_uniform(&l, &classifier_curve(), SubsidenceCurve::Best, 150.0, 130.0).unwrap();
     assert_eq!(fit.events.len(), 1);
@@ -56,7 +56,7 @@ fn the_classifier_curve_fits_beta_two_with_known_timing() {
     );
     // Printed to 3 decimals, so the misfit is at the rounding level.
     assert!(fit.rms_misfit_m < 0.01, "rms {}", fit.rms_misfit_m);
-    // The fitted model curve reproduces the printed table (SCIENCE.md 8.2).
+    // The fitted model curve reproduces the printed table (docs/science.md 8.2).
     for o in classifier_curve() {
         assert_printed(
             fit.subsidence_m(&l, o.age_ma),
@@ -82,7 +82,7 @@ fn a_wrong_end_age_fits_worse_than_the_right_one() {
 
 #[test]
 fn min_and_max_curves_give_smaller_and_larger_beta() {
-    // A deeper curve needs more stretching: Si and S_T both rise with beta (SCIENCE.md 4.2-4.3).
+    // A deeper curve needs more stretching: Si and S_T both rise with beta (docs/science.md 4.2-4.3).
     let l = mckenzie();
     let curve: Vec<SubsidenceObservation> = classifier_curve()
         .into_iter()
@@ -119,7 +119,7 @@ fn a_flat_curve_fits_no_stretching() {
 
 #[test]
 fn a_two_layer_curve_is_fitted_with_its_own_delta_and_beta() {
-    // A curve built from the SCIENCE.md 5 closed forms with delta 1.5, beta 3 (row 2 of
+    // A curve built from the docs/science.md 5 closed forms with delta 1.5, beta 3 (row 2 of
     // the table: Si 704.911, S_T(50) 1027.689) is recovered by the two-layer fit, while
     // the uniform fit cannot match it.
     let l = mckenzie();

@@ -18,7 +18,7 @@ fn ages(oldest: f64, must: &[f64]) -> Vec<f64> {
 }
 
 /// Shale, sandstone and a 60:40 shale-sandstone mix in turn (catalogue names of
-/// SCIENCE.md 1.2).
+/// docs/science.md 1.2).
 fn lithology(i: usize) -> LithologyMix {
     match i % 3 {
         0 => LithologyMix::single("shale"),

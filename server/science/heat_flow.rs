@@ -5,9 +5,9 @@
 //! * during the syn-rift interval, the excess over equilibrium rises linearly from 0 at
 //!   the onset to its instantaneous value `F(0+) - K T1/a` at the rift end, mirroring the
 //!   linear ramp of Si (a documented choice: the closed forms know only an
-//!   instantaneous event, here placed at the rift end, SCIENCE.md 6 approach 1);
+//!   instantaneous event, here placed at the rift end, docs/science.md 6 approach 1);
 //! * after the rift end, the McKenzie (1978) / Royden & Keen (1980) series of
-//!   SCIENCE.md 4.4 and 5 with t = rift end age - age.
+//!   docs/science.md 4.4 and 5 with t = rift end age - age.
 //!
 //! With two events the excesses are superposed with the weights of the subsidence model
 //! (1 for the first, 1/beta1 for the second), the same approximation.
@@ -41,7 +41,7 @@ fn event_excess(
 }
 
 /// Heat flow of a uniform fit at `age_ma` (mW m^-2); the equilibrium with no event.
-/// McKenzie (1978); SCIENCE.md 4.4.
+/// McKenzie (1978); docs/science.md 4.4.
 pub fn uniform_heat_flow_mw_m2(lithosphere: &Lithosphere, fit: &UniformFit, age_ma: f64) -> f64 {
     let equilibrium = lithosphere.equilibrium_heat_flow_mw_m2();
     let mut weight = 1.0;
@@ -54,7 +54,7 @@ pub fn uniform_heat_flow_mw_m2(lithosphere: &Lithosphere, fit: &UniformFit, age_
     flow
 }
 
-/// Heat flow of a two-layer fit at `age_ma` (mW m^-2). Royden & Keen (1980); SCIENCE.md 5.
+/// Heat flow of a two-layer fit at `age_ma` (mW m^-2). Royden & Keen (1980); docs/science.md 5.
 pub fn two_layer_heat_flow_mw_m2(lithosphere: &Lithosphere, fit: &TwoLayerFit, age_ma: f64) -> f64 {
     let equilibrium = lithosphere.equilibrium_heat_flow_mw_m2();
     let after = |t: f64| lithosphere.two_layer_heat_flow_mw_m2(fit.delta, fit.beta, t);
@@ -145,7 +145,7 @@ mod tests {
 
     #[test]
     fn uniform_history_before_during_and_after_the_rift() {
-        // SCIENCE.md 4.4, beta = 2, k = 3.1, tau computed: equilibrium 33.0584, F(0+) 66.1168,
+        // docs/science.md 4.4, beta = 2, k = 3.1, tau computed: equilibrium 33.0584, F(0+) 66.1168,
         // F(20) 62.8632, F(60) 49.2238 mW/m^2.
         let l = mckenzie();
         let fit = beta_two();
@@ -164,7 +164,7 @@ mod tests {
 
     #[test]
     fn two_layer_history_uses_delta_at_the_rift_end() {
-        // SCIENCE.md 5, delta 1.5 / beta 3 row: F(0+) 49.588, F(20) 63.285 mW/m^2.
+        // docs/science.md 5, delta 1.5 / beta 3 row: F(0+) 49.588, F(20) 63.285 mW/m^2.
         let l = mckenzie();
         let fit = TwoLayerFit {
             delta: 1.5,

@@ -36,7 +36,7 @@ pub use column::{
 pub use error::ScienceError;
 pub use params::ModelParameters;
 
-/// Standard gravity (m s^-2); SCIENCE.md section 0.
+/// Standard gravity (m s^-2); docs/science.md section 0.
 pub const GRAVITY_M_S2: f64 = 9.81;
-/// One million Julian years in seconds (SCIENCE.md section 0).
+/// One million Julian years in seconds (docs/science.md section 0).
 pub const SECONDS_PER_MYR: f64 = 3.15576e13;

@@ -2,7 +2,7 @@
 //! porosity–depth law (Athy 1930) and the grain density of each rock type.
 //!
 //! The defaults are the Sclater & Christie (1980) North Sea table and common-practice
-//! values for other rock types (SCIENCE.md 1.2 and 1.3). Every default carries a
+//! values for other rock types (docs/science.md 1.2 and 1.3). Every default carries a
 //! `source` note saying where its numbers come from and how sure we are of them, so a
 //! study can see which values it should check before relying on them.
 
@@ -14,7 +14,7 @@ use serde::{Deserialize, Serialize};
 pub const MIX_FRACTION_TOLERANCE: f64 = 1e-6;
 
 /// One rock type and the parameters of its porosity–depth law
-/// `phi(z) = phi0 exp(-c z)`, z below the sediment surface (Athy 1930; SCIENCE.md 1.1).
+/// `phi(z) = phi0 exp(-c z)`, z below the sediment surface (Athy 1930; docs/science.md 1.1).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Lithology {
     /// Catalogue name, matched case-insensitively.
@@ -97,13 +97,13 @@ impl Lithology {
 
     /// `true` when the thickness of a unit of this lithology changes with burial:
     /// it has pore space (phi0 > 0) that closes with depth (c > 0). Salt, anhydrite,
-    /// coal and basement are non-compacting (SCIENCE.md 1.3).
+    /// coal and basement are non-compacting (docs/science.md 1.3).
     pub fn is_compacting(&self) -> bool {
         self.surface_porosity > 0.0 && self.compaction_per_km > 0.0
     }
 
     /// Porosity `phi0 exp(-c z)` at `depth_m` below the sediment surface (fraction);
-    /// Athy (1930), SCIENCE.md 1.1.
+    /// Athy (1930), docs/science.md 1.1.
     pub fn porosity_at(&self, depth_m: f64) -> f64 {
         self.surface_porosity * (-self.compaction_per_m() * depth_m).exp()
     }
@@ -137,11 +137,11 @@ impl Catalogue {
     }
 
     /// The published defaults: the Sclater & Christie (1980) North Sea table
-    /// (SCIENCE.md 1.2) and common-practice values for other rock types (SCIENCE.md 1.3).
+    /// (docs/science.md 1.2) and common-practice values for other rock types (docs/science.md 1.3).
     /// The [memory] values are editable defaults; check them before relying on them.
     pub fn published_defaults() -> Self {
         const SC80: &str = "Sclater & Christie (1980) North Sea table, via Wangen (2010) \
-            Table 2.1; SCIENCE.md 1.2";
+            Table 2.1; docs/science.md 1.2";
         let entry = |name: &str, phi0: f64, c: f64, rho_g: f64, source: String| Lithology {
             name: name.into(),
             surface_porosity: phi0,
@@ -173,7 +173,7 @@ impl Catalogue {
             ),
             // c = 0.39 per km is the widely quoted value [memory]. Wangen (2010) prints
             // z0 = 2464 m for this row, i.e. c = 0.406 per km, probably a typo for 2564 m;
-            // unresolved (SCIENCE.md 12 item 1). It moves the 2.3 check from 1387.5 to 1390.7 m.
+            // unresolved (docs/science.md 12 item 1). It moves the 2.3 check from 1387.5 to 1390.7 m.
             entry(
                 "shaly sandstone",
                 0.56,
@@ -189,7 +189,7 @@ impl Catalogue {
                 0.40,
                 0.60,
                 2710.0,
-                "SCIENCE.md 1.3 typical picks (phi0 0.40-0.50, c 0.4-0.7/km), calcite grains \
+                "docs/science.md 1.3 typical picks (phi0 0.40-0.50, c 0.4-0.7/km), calcite grains \
                  [memory]; carbonates cement early, use with care"
                     .into(),
             ),
@@ -198,7 +198,7 @@ impl Catalogue {
                 0.30,
                 0.30,
                 2870.0,
-                "SCIENCE.md 1.3 (phi0 ~0.3, c ~0.2-0.4/km, middle taken), dolomite grains \
+                "docs/science.md 1.3 (phi0 ~0.3, c ~0.2-0.4/km, middle taken), dolomite grains \
                  [memory]; low confidence"
                     .into(),
             ),
@@ -207,28 +207,29 @@ impl Catalogue {
                 0.56,
                 0.39,
                 2680.0,
-                "SCIENCE.md 1.3 convention: the shaly sandstone parameters [memory]".into(),
+                "docs/science.md 1.3 convention: the shaly sandstone parameters [memory]".into(),
             ),
             entry(
                 "salt",
                 0.0,
                 0.0,
                 2160.0,
-                "SCIENCE.md 1.3: halite, non-compacting, grain density 2160-2170 [memory]".into(),
+                "docs/science.md 1.3: halite, non-compacting, grain density 2160-2170 [memory]"
+                    .into(),
             ),
             entry(
                 "anhydrite",
                 0.0,
                 0.0,
                 2960.0,
-                "SCIENCE.md 1.3: non-compacting, grain density 2960 [memory]".into(),
+                "docs/science.md 1.3: non-compacting, grain density 2960 [memory]".into(),
             ),
             entry(
                 "coal",
                 0.0,
                 0.0,
                 1400.0,
-                "SCIENCE.md 1.3: usually treated as non-compacting, density 1300-1500 \
+                "docs/science.md 1.3: usually treated as non-compacting, density 1300-1500 \
                  (middle taken) [memory]"
                     .into(),
             ),
@@ -237,8 +238,8 @@ impl Catalogue {
                 0.0,
                 0.0,
                 2800.0,
-                "SCIENCE.md 1.3: non-compacting, density 2700-3000 [memory]; 2800 matches \
-                 McKenzie's (1978) crust (SCIENCE.md 3.2)"
+                "docs/science.md 1.3: non-compacting, density 2700-3000 [memory]; 2800 matches \
+                 McKenzie's (1978) crust (docs/science.md 3.2)"
                     .into(),
             ),
         ];
@@ -260,7 +261,7 @@ impl Catalogue {
 
     /// The single lithology a unit behaves as. A mix is treated as one lithology with
     /// fraction-weighted parameters, `phi0 = sum f_i phi0_i`, `c = sum f_i c_i`,
-    /// `rho_g = sum f_i rho_g_i` (common practice [memory; Allen & Allen]; SCIENCE.md 1.4a).
+    /// `rho_g = sum f_i rho_g_i` (common practice [memory; Allen & Allen]; docs/science.md 1.4a).
     /// A mixture of exponentials is not an exponential, so this is an approximation.
     /// The result is named by the mix label (`shale:60;sandstone:40`).
     ///
@@ -302,7 +303,7 @@ impl Catalogue {
             surface_porosity: phi0,
             compaction_per_km: c,
             grain_density_kg_m3: rho_g,
-            source: "fraction-weighted mix of catalogue lithologies (SCIENCE.md 1.4a)".into(),
+            source: "fraction-weighted mix of catalogue lithologies (docs/science.md 1.4a)".into(),
         })
     }
 }
@@ -327,7 +328,7 @@ mod tests {
 
     #[test]
     fn porosity_follows_the_sclater_christie_table() {
-        // SCIENCE.md 1.2, porosity check values computed from Sclater & Christie (1980)
+        // docs/science.md 1.2, porosity check values computed from Sclater & Christie (1980)
         // parameters, printed to 4 decimals, at 0, 1, 2, 3 and 4 km.
         let table: [(&str, [f64; 5]); 4] = [
             ("shale", [0.6300, 0.3783, 0.2272, 0.1364, 0.0819]),
@@ -358,7 +359,7 @@ mod tests {
                 l.source
             );
         }
-        // SCIENCE.md 1.3: salt, anhydrite, coal and basement are non-compacting.
+        // docs/science.md 1.3: salt, anhydrite, coal and basement are non-compacting.
         for name in ["salt", "anhydrite", "coal", "basement"] {
             let l = defaults.get(name).unwrap();
             assert!(!l.is_compacting(), "{name}");
@@ -398,7 +399,7 @@ mod tests {
 
     #[test]
     fn a_mix_takes_fraction_weighted_parameters() {
-        // SCIENCE.md 1.4 example (a): 60 % shale, 40 % sandstone gives phi0 = 0.574,
+        // docs/science.md 1.4 example (a): 60 % shale, 40 % sandstone gives phi0 = 0.574,
         // c = 0.414 per km, rho_g = 2692 (from the S&C parameters of 1.2).
         let catalogue = Catalogue::published_defaults();
         let l = catalogue

@@ -1,5 +1,5 @@
 //! McKenzie (1978) uniform lithospheric stretching: initial (syn-rift) subsidence,
-//! post-rift thermal subsidence and surface heat flow (SCIENCE.md 4).
+//! post-rift thermal subsidence and surface heat flow (docs/science.md 4).
 //!
 //! The lithosphere of thickness `a` and its crust of thickness `tc` are thinned by
 //! the same factor beta, instantaneously; temperatures are excess over the surface,
@@ -19,12 +19,12 @@ pub enum ThermalSeries {
     /// The full Fourier series, summed until the remaining terms are below 1e-14 of E0.
     Full,
     /// Only the first mode, `E0 r(beta) (1 - exp(-t/tau))`: the common hand-calculation
-    /// form, up to 18 % off at 10 Myr (SCIENCE.md 4.3, 12 item 6). Labelled, never the default.
+    /// form, up to 18 % off at 10 Myr (docs/science.md 4.3, 12 item 6). Labelled, never the default.
     OneTerm,
 }
 
 /// The thermal and density structure of the lithosphere before rifting, with the
-/// infill density, as used by every stretching formula (SCIENCE.md 4.1).
+/// infill density, as used by every stretching formula (docs/science.md 4.1).
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct Lithosphere {
     pub lithosphere_thickness_m: f64,
@@ -48,7 +48,7 @@ impl Lithosphere {
         Self::infilled(p, p.water_density_kg_m3)
     }
 
-    /// The same lithosphere under an infill of `infill_density_kg_m3` (SCIENCE.md 4.2:
+    /// The same lithosphere under an infill of `infill_density_kg_m3` (docs/science.md 4.2:
     /// "for a sediment-filled basin, replace rho_w by the infill density"). The infill
     /// must be lighter than the hot mantle, or the basin could not be filled isostatically.
     pub fn infilled(p: &ModelParameters, infill_density_kg_m3: f64) -> Result<Self, ScienceError> {
@@ -79,7 +79,7 @@ impl Lithosphere {
     }
 
     /// The same lithosphere with tau pinned, e.g. to McKenzie's quoted 62.8 Myr
-    /// (SCIENCE.md 12 item 3). Only for reproducing published tables.
+    /// (docs/science.md 12 item 3). Only for reproducing published tables.
     pub fn with_time_constant_myr(self, time_constant_myr: f64) -> Self {
         Lithosphere {
             time_constant_myr,
@@ -98,20 +98,20 @@ impl Lithosphere {
     }
 
     /// E0 = 4 a rho_0 alpha T1 / (pi^2 (rho_0 - rho_fill)) in m; 3165.648 m for the
-    /// McKenzie (1978) parameters under water (SCIENCE.md 4.1).
+    /// McKenzie (1978) parameters under water (docs/science.md 4.1).
     pub fn thermal_amplitude_m(&self) -> f64 {
         4.0 * self.lithosphere_thickness_m * self.mantle_density_kg_m3 * self.alpha_t1()
             / (PI * PI * (self.mantle_density_kg_m3 - self.infill_density_kg_m3))
     }
 
-    /// Equilibrium surface heat flow K T1 / a in mW m^-2 (SCIENCE.md 4.4).
+    /// Equilibrium surface heat flow K T1 / a in mW m^-2 (docs/science.md 4.4).
     pub fn equilibrium_heat_flow_mw_m2(&self) -> f64 {
         1e3 * self.thermal_conductivity_w_m_k * self.asthenosphere_temperature_c
             / self.lithosphere_thickness_m
     }
 
     /// Initial subsidence for infinite stretching, Si(beta -> inf) in m; Si(beta) is
-    /// this times (1 - 1/beta). McKenzie (1978); W10 eq. 7.28; SCIENCE.md 4.2.
+    /// this times (1 - 1/beta). McKenzie (1978); W10 eq. 7.28; docs/science.md 4.2.
     pub fn initial_subsidence_limit_m(&self) -> f64 {
         let (a, tc) = (self.lithosphere_thickness_m, self.crust_thickness_m);
         let (rho0, rhoc) = (self.mantle_density_kg_m3, self.crust_density_kg_m3);
@@ -127,13 +127,13 @@ impl Lithosphere {
     ///
     /// beta >= 1 (callers validate with [`check_stretching_factor`]); beta = inf is the
     /// limit. Negative (uplift) when the crust is thinner than about 17 km.
-    /// McKenzie (1978); W10 eq. 7.28; SCIENCE.md 4.2.
+    /// McKenzie (1978); W10 eq. 7.28; docs/science.md 4.2.
     pub fn initial_subsidence_m(&self, beta: f64) -> f64 {
         self.initial_subsidence_limit_m() * (1.0 - 1.0 / beta)
     }
 
     /// The beta that gives an initial subsidence `initial_subsidence_m`, by the linear
-    /// relation in 1/beta: `beta = 1 / (1 - Si / Si(inf))` (SCIENCE.md 4.2). Errors:
+    /// relation in 1/beta: `beta = 1 / (1 - Si / Si(inf))` (docs/science.md 4.2). Errors:
     /// a crust too thin for subsidence, or Si outside [0, Si(inf)).
     pub fn beta_from_initial_subsidence(
         &self,
@@ -156,8 +156,8 @@ impl Lithosphere {
     /// evaluated as `S_T(inf) - E0 sum ... exp(...)`, whose terms die off like a Gaussian
     /// instead of 1/n^3, summed until the tail is below 1e-14 E0; [`ThermalSeries::OneTerm`]
     /// keeps the first mode only. Zero for t <= 0. The denominator rho_0 - rho_fill and
-    /// the crust treated as mantle are McKenzie's simplifications (SCIENCE.md 4.5).
-    /// McKenzie (1978); W10 eq. 7.70; SCIENCE.md 4.3.
+    /// the crust treated as mantle are McKenzie's simplifications (docs/science.md 4.5).
+    /// McKenzie (1978); W10 eq. 7.70; docs/science.md 4.3.
     pub fn thermal_subsidence_m(&self, beta: f64, t_myr: f64, series: ThermalSeries) -> f64 {
         if t_myr <= 0.0 {
             return 0.0;
@@ -176,7 +176,7 @@ impl Lithosphere {
     }
 
     /// Thermal subsidence as t -> inf in m: `E0 (pi^2/8)(1 - 1/beta)` for the full series
-    /// (W10 eq. 7.33; SCIENCE.md 4.3), `E0 r(beta)` for the one-term form.
+    /// (W10 eq. 7.33; docs/science.md 4.3), `E0 r(beta)` for the one-term form.
     pub fn final_thermal_subsidence_m(&self, beta: f64, series: ThermalSeries) -> f64 {
         let e0 = self.thermal_amplitude_m();
         match series {
@@ -187,7 +187,7 @@ impl Lithosphere {
 
     /// Rate of thermal subsidence just after the rift event, m/Myr. Full series:
     /// `E0 beta / (4 tau)`, from the square-wave sum `sum_{k odd} sin(k theta)/k = pi/4`
-    /// (0 < theta < pi), which gives exactly E0/(2 tau) for beta = 2 (SCIENCE.md 4.3).
+    /// (0 < theta < pi), which gives exactly E0/(2 tau) for beta = 2 (docs/science.md 4.3).
     /// One-term: `E0 r(beta) / tau`.
     pub fn initial_thermal_rate_m_per_myr(&self, beta: f64, series: ThermalSeries) -> f64 {
         let e0 = self.thermal_amplitude_m();
@@ -199,7 +199,7 @@ impl Lithosphere {
     }
 
     /// The beta whose thermal subsidence after `t_myr` is `thermal_subsidence_m`, by
-    /// bisection (S_T rises monotonically with beta; SCIENCE.md 4.3 inversion checks).
+    /// bisection (S_T rises monotonically with beta; docs/science.md 4.3 inversion checks).
     /// Errors: t <= 0, or a value outside what beta in [1, 1e6] can give.
     pub fn beta_from_thermal_subsidence(
         &self,
@@ -229,7 +229,7 @@ impl Lithosphere {
     ///
     /// with the closed value `F(0+) = beta K T1/a` at t = 0, where the series converges
     /// only conditionally, and `K T1/a` before the event (t < 0). Radiogenic heat ignored.
-    /// McKenzie (1978); W10 eqs. 7.62, 7.67, 7.68; SCIENCE.md 4.4.
+    /// McKenzie (1978); W10 eqs. 7.62, 7.67, 7.68; docs/science.md 4.4.
     pub fn heat_flow_mw_m2(&self, beta: f64, t_myr: f64) -> f64 {
         let equilibrium = self.equilibrium_heat_flow_mw_m2();
         if t_myr < 0.0 {
@@ -245,7 +245,7 @@ impl Lithosphere {
 }
 
 /// r(beta) = (beta/pi) sin(pi/beta): the one-term amplitude, rising from 0 at beta = 1
-/// to 1 as beta -> inf (SCIENCE.md 4.3).
+/// to 1 as beta -> inf (docs/science.md 4.3).
 pub fn one_term_factor(beta: f64) -> f64 {
     uniform_mode(beta, 1.0)
 }
@@ -265,7 +265,7 @@ pub fn check_stretching_factor(name: &'static str, value: f64) -> Result<f64, Sc
 
 /// McKenzie's modal coefficient `(beta/pi) sin(n pi/beta) / n^3`; its magnitude is at
 /// most 1/n^2 (|sin x| <= x), and it tends to 1/n^2 as beta -> inf (the plate-model limit,
-/// SCIENCE.md 7).
+/// docs/science.md 7).
 pub(crate) fn uniform_mode(beta: f64, n: f64) -> f64 {
     if beta.is_infinite() {
         return 1.0 / (n * n);

@@ -1,11 +1,11 @@
 use super::*;
 use crate::tolerance::{assert_printed, assert_relative};
 
-/// The "3.1409" conductivity of SCIENCE.md 4.4: the k implied by McKenzie's
+/// The "3.1409" conductivity of docs/science.md 4.4: the k implied by McKenzie's
 /// equilibrium of 0.8 HFU = 33.4944 mW/m^2, k = q a / T1.
 const HFU_08: f64 = 33.4944e-3 * 125_000.0 / 1333.0;
 
-/// McKenzie (1978) parameters (SCIENCE.md 4.1), water-loaded, tau from a and kappa.
+/// McKenzie (1978) parameters (docs/science.md 4.1), water-loaded, tau from a and kappa.
 fn mckenzie() -> Lithosphere {
     Lithosphere::water_loaded(&ModelParameters::default()).unwrap()
 }
@@ -21,7 +21,7 @@ fn with_crust(tc: f64) -> Lithosphere {
 #[test]
 fn e0_and_tau_come_from_the_parameters() {
     let l = mckenzie();
-    // SCIENCE.md 4.1: E0 = 3165.648 m (water), 3206.939 m with rho_w = 1030.
+    // docs/science.md 4.1: E0 = 3165.648 m (water), 3206.939 m with rho_w = 1030.
     assert_printed(l.thermal_amplitude_m(), 3165.648, 3, "E0 water");
     let sea = ModelParameters {
         water_density_kg_m3: 1030.0,
@@ -35,7 +35,7 @@ fn e0_and_tau_come_from_the_parameters() {
         3,
         "E0 sea water",
     );
-    // SCIENCE.md 4.1: tau = 62.7085 Myr with the Julian year; a thicker plate is slower.
+    // docs/science.md 4.1: tau = 62.7085 Myr with the Julian year; a thicker plate is slower.
     assert_printed(l.time_constant_myr, 62.7085, 4, "tau");
     let thick = ModelParameters {
         lithosphere_thickness_m: 250_000.0,
@@ -51,7 +51,7 @@ fn e0_and_tau_come_from_the_parameters() {
 
 #[test]
 fn initial_subsidence_matches_the_table_for_both_crusts() {
-    // SCIENCE.md 4.2 table, McKenzie (1978) closed form, water-loaded.
+    // docs/science.md 4.2 table, McKenzie (1978) closed form, water-loaded.
     let rows = [
         (35_000.0, [1424.756, 2137.134, 2849.512, 3205.701], 4274.267),
         (31_200.0, [1120.984, 1681.476, 2241.968, 2522.214], 3362.951),
@@ -77,7 +77,7 @@ fn initial_subsidence_matches_the_table_for_both_crusts() {
 
 #[test]
 fn sediment_filled_subsidence_thin_crust_uplift_and_beta_inversion() {
-    // SCIENCE.md 4.2: sediment-filled (rho_fill = 2000), beta 2, tc 35 km: 3941.529 m.
+    // docs/science.md 4.2: sediment-filled (rho_fill = 2000), beta 2, tc 35 km: 3941.529 m.
     let filled = Lithosphere::infilled(&ModelParameters::default(), 2000.0).unwrap();
     assert_printed(
         filled.initial_subsidence_m(2.0),
@@ -85,10 +85,10 @@ fn sediment_filled_subsidence_thin_crust_uplift_and_beta_inversion() {
         3,
         "Si sediment-filled",
     );
-    // SCIENCE.md 4.2: Si > 0 only for tc > 17.22 km.
+    // docs/science.md 4.2: Si > 0 only for tc > 17.22 km.
     assert!(with_crust(17_300.0).initial_subsidence_m(2.0) > 0.0);
     assert!(with_crust(17_100.0).initial_subsidence_m(2.0) < 0.0);
-    // SCIENCE.md 4.2: Si = 1500 m with tc = 35 km inverts to beta = 1.54068.
+    // docs/science.md 4.2: Si = 1500 m with tc = 35 km inverts to beta = 1.54068.
     assert_printed(
         mckenzie().beta_from_initial_subsidence(1500.0).unwrap(),
         1.54068,
@@ -104,7 +104,7 @@ fn sediment_filled_subsidence_thin_crust_uplift_and_beta_inversion() {
 // The table prints r(2) = 2/pi as 0.63662; the printed value is the check.
 #[allow(clippy::approx_constant)]
 fn one_term_factor_matches_the_table() {
-    // SCIENCE.md 4.3 table of r(beta) = (beta/pi) sin(pi/beta).
+    // docs/science.md 4.3 table of r(beta) = (beta/pi) sin(pi/beta).
     let table = [
         (1.1, 0.09865),
         (1.25, 0.23387),
@@ -121,7 +121,7 @@ fn one_term_factor_matches_the_table() {
 
 #[test]
 fn thermal_subsidence_full_and_one_term_with_computed_tau() {
-    // SCIENCE.md 4.3, tau = 62.7085 Myr (computed from a and kappa).
+    // docs/science.md 4.3, tau = 62.7085 Myr (computed from a and kappa).
     let l = mckenzie();
     let rows = [
         (
@@ -156,7 +156,7 @@ fn thermal_subsidence_full_and_one_term_with_computed_tau() {
 
 #[test]
 fn thermal_subsidence_with_tau_pinned_to_the_quoted_62_8() {
-    // SCIENCE.md 4.3 second table: tau pinned to McKenzie's quoted 62.8 Myr.
+    // docs/science.md 4.3 second table: tau pinned to McKenzie's quoted 62.8 Myr.
     let l = mckenzie().with_time_constant_myr(62.8);
     let rows = [
         (
@@ -212,7 +212,7 @@ fn the_series_sum_agrees_with_the_direct_series_at_early_times() {
 #[test]
 fn final_thermal_subsidence_total_subsidence_and_initial_rates() {
     let l = mckenzie();
-    // SCIENCE.md 4.3: S_T(inf) full, one-term, and initial one-term rate E0 r / tau.
+    // docs/science.md 4.3: S_T(inf) full, one-term, and initial one-term rate E0 r / tau.
     let full = [1301.820, 1952.731, 2603.641, 2929.096];
     let one = [1308.985, 2015.314, 2617.969, 2850.084];
     let rate = [20.874, 32.138, 41.748, 45.450];
@@ -236,7 +236,7 @@ fn final_thermal_subsidence_total_subsidence_and_initial_rates() {
             "rate one-term",
         );
     }
-    // SCIENCE.md 4.3: for beta = 2 the full-series initial rate is E0/(2 tau) = 25.24 m/Myr,
+    // docs/science.md 4.3: for beta = 2 the full-series initial rate is E0/(2 tau) = 25.24 m/Myr,
     // and the series itself approaches it (finite difference over 1e-4 Myr).
     assert_printed(
         l.initial_thermal_rate_m_per_myr(2.0, ThermalSeries::Full),
@@ -246,7 +246,7 @@ fn final_thermal_subsidence_total_subsidence_and_initial_rates() {
     );
     let slope = l.thermal_subsidence_m(2.0, 1e-4, ThermalSeries::Full) / 1e-4;
     assert_relative(slope, 25.24, 2e-3, "series slope at 0+");
-    // SCIENCE.md 4.3: Si + S_T, tc = 35 km, beta 2 and 4.
+    // docs/science.md 4.3: Si + S_T, tc = 35 km, beta 2 and 4.
     let totals = [
         (2.0, [2389.086, 3181.971, 3680.809, 4006.837], 4089.864),
         (4.0, [3680.119, 4850.680, 5556.305, 6017.378], 6134.796),
@@ -265,7 +265,7 @@ fn final_thermal_subsidence_total_subsidence_and_initial_rates() {
 
 #[test]
 fn beta_from_thermal_subsidence_inverts_both_series() {
-    // SCIENCE.md 4.3: S_T = 1000 m at 50 Myr gives 1.91704 (full) and 1.82641 (one-term).
+    // docs/science.md 4.3: S_T = 1000 m at 50 Myr gives 1.91704 (full) and 1.82641 (one-term).
     let l = mckenzie();
     assert_printed(
         l.beta_from_thermal_subsidence(1000.0, 50.0, ThermalSeries::Full)
@@ -289,7 +289,7 @@ fn beta_from_thermal_subsidence_inverts_both_series() {
 
 #[test]
 fn heat_flow_matches_the_table_for_both_conductivities_and_taus() {
-    // SCIENCE.md 4.4, beta = 2: (k, tau, F(0+), F(20), F(60), K T1/a).
+    // docs/science.md 4.4, beta = 2: (k, tau, F(0+), F(20), F(60), K T1/a).
     let rows = [
         (3.1, None, [66.1168, 62.8632, 49.2238], 33.0584),
         (3.1, Some(62.8), [66.1168, 62.8741, 49.2463], 33.0584),
@@ -321,7 +321,7 @@ fn heat_flow_matches_the_table_for_both_conductivities_and_taus() {
             "before the event",
         );
     }
-    // SCIENCE.md 4.4: beta = 4, k = 3.1, tau computed.
+    // docs/science.md 4.4: beta = 4, k = 3.1, tau computed.
     let l = mckenzie();
     for (t, printed) in [(0.0, 132.2336), (20.0, 89.2023), (60.0, 56.8433)] {
         assert_printed(
@@ -331,7 +331,7 @@ fn heat_flow_matches_the_table_for_both_conductivities_and_taus() {
             &format!("F beta=4 t={t}"),
         );
     }
-    // SCIENCE.md 4.4: the finite-difference check F(10) = 65.759, F(50) = 52.011 (beta 2).
+    // docs/science.md 4.4: the finite-difference check F(10) = 65.759, F(50) = 52.011 (beta 2).
     assert_printed(l.heat_flow_mw_m2(2.0, 10.0), 65.759, 3, "F(10)");
     assert_printed(l.heat_flow_mw_m2(2.0, 50.0), 52.011, 3, "F(50)");
     // The series tends to the closed value F(0+) = beta K T1/a as t -> 0 (W10 eq. 7.68).
@@ -345,7 +345,7 @@ fn heat_flow_matches_the_table_for_both_conductivities_and_taus() {
 
 #[test]
 fn infinite_stretching_approaches_the_oceanic_plate_model() {
-    // SCIENCE.md 7: the beta -> inf limit against Parsons & Sclater (1977).
+    // docs/science.md 7: the beta -> inf limit against Parsons & Sclater (1977).
     let l = mckenzie();
     let inf = f64::INFINITY;
     // S_T(inf) = E0 pi^2/8 = 3905.46 m, against PS77's 6400 - 2500 = 3900 m (0.2 %).
@@ -361,13 +361,13 @@ fn infinite_stretching_approaches_the_oceanic_plate_model() {
         2e-3,
         "PS77 3900 m",
     );
-    // Early time, half-space: 354.28 sqrt(t) m (SCIENCE.md 7), within 3 % of PS77's 350 sqrt(t).
+    // Early time, half-space: 354.28 sqrt(t) m (docs/science.md 7), within 3 % of PS77's 350 sqrt(t).
     for t in [0.25, 1.0, 4.0] {
         let s = l.thermal_subsidence_m(inf, t, ThermalSeries::Full);
         assert_relative(s, 354.28 * f64::sqrt(t), 5e-3, "half-space law");
         assert_relative(s, 350.0 * f64::sqrt(t), 3e-2, "PS77 sqrt law");
     }
-    // SCIENCE.md 7 depth table, McKenzie column: 2500 + S_T(beta -> inf, tau = 62.8).
+    // docs/science.md 7 depth table, McKenzie column: 2500 + S_T(beta -> inf, tau = 62.8).
     // The printed column was summed directly with 2000 terms, which drops the tail
     // E0 sum_{n odd > 4000} 1/n^2 = E0/8000 = 0.396 m (found while writing this test);
     // our converged sum less that tail reproduces every printed value.
@@ -392,7 +392,7 @@ fn infinite_stretching_approaches_the_oceanic_plate_model() {
             &format!("ridge depth t={t}"),
         );
     }
-    // SCIENCE.md 7: beta -> inf heat flow at 10 Myr is 148.77 mW/m^2 "with k = 3.141"; the
+    // docs/science.md 7: beta -> inf heat flow at 10 Myr is 148.77 mW/m^2 "with k = 3.141"; the
     // printed digits need tau = 62.8 and the 0.8 HFU conductivity (148.774; found while
     // writing this test), against 149.61 from PS77's 473.1/sqrt(t) (within 1 %).
     let p = ModelParameters {

@@ -6,10 +6,10 @@ use serde::{Deserialize, Serialize};
 /// Lithosphere, crust and fluid properties used by backstripping, stretching fits
 /// and heat flow. Field names carry their units; the JSON contract uses the same names.
 ///
-/// Defaults follow McKenzie (1978) as tabulated in SCIENCE.md 4.1 (mantle 3330,
+/// Defaults follow McKenzie (1978) as tabulated in docs/science.md 4.1 (mantle 3330,
 /// crust 2800, water 1000 kg m^-3; a = 125 km; T1 = 1333 °C; alpha = 3.28e-5 /°C;
-/// kappa = 8e-7 m^2/s), with tc = 35 km (the SCIENCE.md check crust) and
-/// k = 3.1 W/m/K (a common round value, SCIENCE.md 12 item 4).
+/// kappa = 8e-7 m^2/s), with tc = 35 km (the docs/science.md check crust) and
+/// k = 3.1 W/m/K (a common round value, docs/science.md 12 item 4).
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 #[serde(default)]
 pub struct ModelParameters {
@@ -182,7 +182,7 @@ impl ModelParameters {
         }
     }
 
-    /// Thermal time constant tau = a^2 / (pi^2 kappa), in Myr (SCIENCE.md 4.1).
+    /// Thermal time constant tau = a^2 / (pi^2 kappa), in Myr (docs/science.md 4.1).
     pub fn thermal_time_constant_myr(&self) -> f64 {
         let a = self.lithosphere_thickness_m;
         a * a
@@ -214,7 +214,7 @@ mod tests {
     fn defaults_are_valid_and_give_mckenzies_time_constant() {
         let p = ModelParameters::default();
         assert!(p.validate().is_ok());
-        // SCIENCE.md 4.1: tau = a^2/(pi^2 kappa) = 62.7085 Myr with the Julian year.
+        // docs/science.md 4.1: tau = a^2/(pi^2 kappa) = 62.7085 Myr with the Julian year.
         assert_printed(p.thermal_time_constant_myr(), 62.7085, 4, "tau");
     }
 

@@ -1,12 +1,12 @@
 //! Phase proposal: split a tectonic-subsidence series into pre-rift, syn-rift and
 //! post-rift intervals by fitting the stretching model of [`super::fit`] to every
 //! candidate (rift onset, rift end) pair of surface ages and choosing by a penalised
-//! misfit (SCIENCE.md 8.2 item 3, "model-based, recommended for software").
+//! misfit (docs/science.md 8.2 item 3, "model-based, recommended for software").
 //!
 //! Models compared, by the Bayesian information criterion
 //! `BIC = N ln(RSS/N + s^2) + k ln N` with a misfit floor s = [`MISFIT_FLOOR_M`]:
 //! no rift (a straight line in age, k = 2), one rift event (onset, end, beta, Y0: k = 4)
-//! and two events (k = 7, accepted only if the BIC improves; SCIENCE.md 8.2 item 4).
+//! and two events (k = 7, accepted only if the BIC improves; docs/science.md 8.2 item 4).
 //!
 //! Search, one event: for each end surface and each beta on a grid of u = 1 - 1/beta,
 //! the post-rift sums are computed once; the syn-rift sums for every onset then come
@@ -110,7 +110,7 @@ fn rss_of(fit: &UniformFit, n: usize) -> f64 {
 
 /// Propose phases for a well from its best tectonic-subsidence curve: every (onset, end)
 /// pair of surface ages, no rift, and a second event, chosen by BIC. Errors: a series
-/// that [`check_observations`] refuses. SCIENCE.md 6, 8.2.
+/// that [`check_observations`] refuses. docs/science.md 6, 8.2.
 pub fn propose_phases(
     lithosphere: &Lithosphere,
     observations: &[SubsidenceObservation],
@@ -158,7 +158,7 @@ pub fn propose_phases(
 }
 
 /// Refit with the team's rift timing, one or two `(onset_ma, end_ma)` pairs oldest first,
-/// each within the series' age range. Replaces the proposal. SCIENCE.md 6.
+/// each within the series' age range. Replaces the proposal. docs/science.md 6.
 pub fn phases_from_picks(
     lithosphere: &Lithosphere,
     observations: &[SubsidenceObservation],

@@ -47,7 +47,7 @@ fn one_event(onset: f64, end: f64, beta: f64, y0: f64) -> UniformFit {
 
 #[test]
 fn the_classifier_curve_is_split_at_150_and_130_ma_with_beta_two() {
-    // SCIENCE.md 8.2 synthetic classifier curve: onset 150, end 130 Ma, beta 2.
+    // docs/science.md 8.2 synthetic classifier curve: onset 150, end 130 Ma, beta 2.
     let l = mckenzie();
     let p = propose_phases(&l, &classifier_curve()).unwrap();
     let fit = p.uniform.as_ref().expect("a rift");

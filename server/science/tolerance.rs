@@ -1,10 +1,10 @@
 //! One tolerance policy for the science core and its tests.
 //!
-//! Published check values in SCIENCE.md are printed to 3 decimals (mm for lengths),
+//! Published check values in docs/science.md are printed to 3 decimals (mm for lengths),
 //! so a check passes when it agrees to half a unit of the last printed digit, or
 //! to a relative tolerance for values printed to significant figures.
 
-/// Convergence tolerance of iterative depth solves (m), as SCIENCE.md 2.2 recommends:
+/// Convergence tolerance of iterative depth solves (m), as docs/science.md 2.2 recommends:
 /// a micrometre, far below the millimetres that published values are printed to.
 pub const DEPTH_SOLVE_M: f64 = 1e-6;
 

@@ -1,9 +1,9 @@
 //! Royden & Keen (1980) depth-dependent (two-layer) stretching: the crust thins by
-//! delta, the mantle lithosphere below it by beta (SCIENCE.md 5).
+//! delta, the mantle lithosphere below it by beta (docs/science.md 5).
 //!
 //! All of McKenzie's assumptions are kept (instantaneous stretching, fixed plate base
 //! at T1, temperatures carried with the material, the simplified thermal isostasy of
-//! SCIENCE.md 4.5). The closed forms are the ones derived in SCIENCE.md 5 (flagged
+//! docs/science.md 4.5). The closed forms are the ones derived in docs/science.md 5 (flagged
 //! [derived] there: checked numerically, not against the paper's printed equations);
 //! every one reduces to McKenzie's when delta = beta. Methods live on
 //! [`Lithosphere`], beside the uniform ones.
@@ -38,7 +38,7 @@ impl Lithosphere {
     /// `Si = {(1 - 1/delta) tc [(rho_0 - rho_c) - alpha T1 (rho_0 - rho_c tc/(2a))]
     ///        - (1 - 1/beta) rho_0 alpha T1 (a - tc)^2/(2a)} / (rho_0 (1 - alpha T1) - rho_fill)`
     ///
-    /// delta, beta >= 1. Royden & Keen (1980); SCIENCE.md 5 [derived].
+    /// delta, beta >= 1. Royden & Keen (1980); docs/science.md 5 [derived].
     pub fn two_layer_initial_subsidence_m(&self, delta: f64, beta: f64) -> f64 {
         let (a, tc) = (self.lithosphere_thickness_m, self.crust_thickness_m);
         let (rho0, rhoc) = (self.mantle_density_kg_m3, self.crust_density_kg_m3);
@@ -55,7 +55,7 @@ impl Lithosphere {
     ///        (1 - exp(-n^2 t/tau))`
     ///
     /// summed as `S_T(inf) - E0 sum ... exp(...)` like the uniform case; one-term keeps
-    /// n = 1. Zero for t <= 0. Royden & Keen (1980); SCIENCE.md 5 [derived].
+    /// n = 1. Zero for t <= 0. Royden & Keen (1980); docs/science.md 5 [derived].
     pub fn two_layer_thermal_subsidence_m(
         &self,
         delta: f64,
@@ -80,7 +80,7 @@ impl Lithosphere {
 
     /// Two-layer thermal subsidence as t -> inf in m. Full series:
     /// `rho_0 alpha T1 [a/2 - (tc/delta)(1 - tc/(2a)) - (a - tc)^2/(2 a beta)] / (rho_0 - rho_fill)`;
-    /// one-term: `E0` times the first modal coefficient. SCIENCE.md 5 [derived].
+    /// one-term: `E0` times the first modal coefficient. docs/science.md 5 [derived].
     pub fn two_layer_final_thermal_subsidence_m(
         &self,
         delta: f64,
@@ -110,7 +110,7 @@ impl Lithosphere {
     ///      exp(-n^2 t/tau)]`
     ///
     /// with the closed value `F(0+) = delta K T1/a` (the crust's geotherm gradient sets the
-    /// surface flux) and `K T1/a` before the event. SCIENCE.md 5 [derived].
+    /// surface flux) and `K T1/a` before the event. docs/science.md 5 [derived].
     pub fn two_layer_heat_flow_mw_m2(&self, delta: f64, beta: f64, t_myr: f64) -> f64 {
         let equilibrium = self.equilibrium_heat_flow_mw_m2();
         if t_myr < 0.0 {
@@ -143,7 +143,7 @@ mod tests {
 
     #[test]
     fn all_six_rows_of_the_two_layer_table() {
-        // SCIENCE.md 5 table (tc 35 km, tau computed, k 3.1, water-loaded):
+        // docs/science.md 5 table (tc 35 km, tau computed, k 3.1, water-loaded):
         // (delta, beta, Si, S_T(50), S_T(inf), F(0+), F(20)).
         let rows = [
             (2.0, 2.0, 2137.134, 1044.837, 1952.731, 66.117, 62.863),
@@ -191,7 +191,7 @@ mod tests {
 
     #[test]
     fn equal_factors_reduce_exactly_to_mckenzie() {
-        // SCIENCE.md 5: every two-layer form equals McKenzie (1978) when delta = beta.
+        // docs/science.md 5: every two-layer form equals McKenzie (1978) when delta = beta.
         // Absolute slack of 1e-9 (m or mW/m^2) because beta = 1 gives exact zeros.
         let close = |a: f64, b: f64, what: &str| {
             assert!(
@@ -228,7 +228,7 @@ mod tests {
 
     #[test]
     fn the_series_starts_from_zero_and_its_sum_matches_the_closed_final_value() {
-        // S_T(inf) closed form (SCIENCE.md 5) equals E0 sum_{n odd} mode(n) (series at t -> inf),
+        // S_T(inf) closed form (docs/science.md 5) equals E0 sum_{n odd} mode(n) (series at t -> inf),
         // so S_T(0+) -> 0: checked by summing the modes directly.
         let l = mckenzie();
         let e0 = l.thermal_amplitude_m();

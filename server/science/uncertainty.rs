@@ -5,7 +5,7 @@
 //!   point at the shallow, or the deep, end of its PWD range at once);
 //! * a seeded Monte-Carlo draw: each point's tectonic subsidence drawn uniformly in
 //!   [min, max], independently, the factors refitted per draw, and the 5th and 95th
-//!   percentiles reported (PRODUCT.md "Computation" 4; SCIENCE.md 9.1: PWD bounds pass
+//!   percentiles reported (PRODUCT.md "Computation" 4; docs/science.md 9.1: PWD bounds pass
 //!   into Y one-for-one).
 //!
 //! The same seed gives the same draws on every machine (rand's `StdRng`).
@@ -188,9 +188,9 @@ mod tests {
     use crate::fit::tests::{classifier_curve, mckenzie};
     use crate::fit::{RiftEvent, fit_uniform};
 
-    /// The SCIENCE.md 8.2 classifier curve (beta 2) with a PWD range of +-(5 m + `share`
+    /// The docs/science.md 8.2 classifier curve (beta 2) with a PWD range of +-(5 m + `share`
     /// of the subsidence): deeper water is less certain, so the range widens as the basin
-    /// deepens (Y inherits the PWD bounds one-for-one, SCIENCE.md 9.1). A range of one
+    /// deepens (Y inherits the PWD bounds one-for-one, docs/science.md 9.1). A range of one
     /// width everywhere would only move Y0.
     fn ranged(share: f64) -> Vec<SubsidenceObservation> {
         classifier_curve()
@@ -218,7 +218,7 @@ mod tests {
         let two = fit_two_layer(&l, &obs, SubsidenceCurve::Best, 150.0, 130.0).unwrap();
         let u = stretching_uncertainty(&l, &obs, &fit, Some(&two), MonteCarloSettings::default())
             .unwrap();
-        // The curve was built with beta = 2 (SCIENCE.md 8.2).
+        // The curve was built with beta = 2 (docs/science.md 8.2).
         let b = u.beta;
         assert!(b.curve_min < 2.0 && 2.0 < b.curve_max, "{b:?}");
         assert!(b.p05 < 2.0 && 2.0 < b.p95, "{b:?}");

@@ -172,7 +172,7 @@ fn svg_size(svg: &str) -> Option<(u32, u32)> {
 
 /// A chart as a PNG download (rasterised at twice its size, with the caption strip).
 pub fn png_download(meta: &ExportMeta, file_name: &str, svg: &str) -> Response {
-    match crate::charts::svg_to_png(&meta.captioned_svg(svg), 2.0) {
+    match sagline_charts::svg_to_png(&meta.captioned_svg(svg), 2.0) {
         Ok(png) => (
             [
                 (header::CONTENT_TYPE, "image/png".to_string()),

@@ -3,7 +3,6 @@
 use super::exports::{self, ExportMeta};
 use super::pages::{StudiesPage, StudyPage};
 use super::{ApiResult, AppError, AppState, PageResult};
-use crate::charts::{self, ChartSize, MapWell, RiftTimingData, RiftTimingWell, WellMapData};
 use crate::services::results::{self, WellResult};
 use crate::store;
 use crate::store::picks::PickRow;
@@ -15,6 +14,7 @@ use axum::extract::{Path, State};
 use axum::response::{Html, Redirect, Response};
 use axum::routing::get;
 use axum::{Form, Json, Router};
+use sagline_charts::{ChartSize, MapWell, RiftTimingData, RiftTimingWell, WellMapData};
 use sagline_science::analysis::contract::RiftEventOut;
 use sagline_science::analysis::{self, StudyInputs};
 use serde::{Deserialize, Serialize};
@@ -238,8 +238,8 @@ async fn overview_rows(
 fn overview_charts(study: &str, rows: &[OverviewRow]) -> OverviewCharts {
     let size = ChartSize::default();
     OverviewCharts {
-        map: charts::well_map_chart(&map_data(study, rows), size),
-        rift_timing: charts::rift_timing_chart(
+        map: sagline_charts::well_map_chart(&map_data(study, rows), size),
+        rift_timing: sagline_charts::rift_timing_chart(
             &rift_timing_data(study, rows),
             ChartSize {
                 width: 900,
@@ -369,7 +369,7 @@ async fn study_download(
         "map.svg" => exports::download(
             "image/svg+xml",
             &format!("{base}-map.svg"),
-            meta.stamp_svg(&charts::well_map_chart(
+            meta.stamp_svg(&sagline_charts::well_map_chart(
                 &map_data(&base, &rows),
                 ChartSize::default(),
             )),
@@ -382,14 +382,15 @@ async fn study_download(
             exports::download(
                 "image/svg+xml",
                 &format!("{base}-rift-timing.svg"),
-                meta.stamp_svg(&charts::rift_timing_chart(
+                meta.stamp_svg(&sagline_charts::rift_timing_chart(
                     &rift_timing_data(&base, &rows),
                     size,
                 )),
             )
         }
         "map.png" => {
-            let chart = charts::well_map_chart(&map_data(&base, &rows), ChartSize::default());
+            let chart =
+                sagline_charts::well_map_chart(&map_data(&base, &rows), ChartSize::default());
             exports::png_download(&meta, &format!("{base}-map.png"), &chart)
         }
         "rift-timing.png" => {
@@ -397,7 +398,7 @@ async fn study_download(
                 width: 900,
                 height: rift_chart_height(rows.len()),
             };
-            let chart = charts::rift_timing_chart(&rift_timing_data(&base, &rows), size);
+            let chart = sagline_charts::rift_timing_chart(&rift_timing_data(&base, &rows), size);
             exports::png_download(&meta, &format!("{base}-rift-timing.png"), &chart)
         }
         "analysis.json" => {

@@ -1,6 +1,6 @@
-//! Mapping a well's analysis into the chart inputs of `crate::charts`.
+//! Mapping a well's analysis into the chart inputs of `sagline_charts`.
 
-use crate::charts::{
+use sagline_charts::{
     BurialChartData, BurialHorizon, BurialUnit, BurialUnitStep, HeatFlowChartData, PhaseBand,
     SubsidenceChartData, TectonicPoint, WaterDepthPoint,
 };

@@ -6,7 +6,6 @@ use super::pages::WellPage;
 use super::studies::{StudyInfo, load_study};
 use super::well_charts;
 use super::{ApiResult, AppError, AppState, PageResult};
-use crate::charts::{self, ChartSize};
 use crate::services::results::{self, WellResult};
 use crate::store;
 use crate::store::comments::CommentRow;
@@ -20,6 +19,7 @@ use axum::response::IntoResponse;
 use axum::response::{Html, Response};
 use axum::routing::get;
 use axum::{Json, Router};
+use sagline_charts::ChartSize;
 use sagline_science::analysis::{self, StudyInputs, WellAnalysis, contract::WellOut};
 use serde::{Deserialize, Serialize};
 
@@ -204,12 +204,15 @@ async fn well_view(
         Ok(a) => {
             let size = ChartSize::default();
             WellCharts {
-                subsidence: charts::subsidence_chart(
+                subsidence: sagline_charts::subsidence_chart(
                     &well_charts::subsidence_data(&r.well.name, a),
                     size,
                 ),
-                burial: charts::burial_chart(&well_charts::burial_data(&r.well.name, a), size),
-                heat_flow: charts::heat_flow_chart(
+                burial: sagline_charts::burial_chart(
+                    &well_charts::burial_data(&r.well.name, a),
+                    size,
+                ),
+                heat_flow: sagline_charts::heat_flow_chart(
                     &well_charts::heat_flow_data(&r.well.name, a),
                     size,
                 ),
@@ -390,28 +393,30 @@ async fn well_download(
         )
     };
     Ok(match file.as_str() {
-        "subsidence.svg" => svg(charts::subsidence_chart(
+        "subsidence.svg" => svg(sagline_charts::subsidence_chart(
             &well_charts::subsidence_data(name, a),
             size,
         )),
-        "burial.svg" => svg(charts::burial_chart(
+        "burial.svg" => svg(sagline_charts::burial_chart(
             &well_charts::burial_data(name, a),
             size,
         )),
-        "heat-flow.svg" => svg(charts::heat_flow_chart(
+        "heat-flow.svg" => svg(sagline_charts::heat_flow_chart(
             &well_charts::heat_flow_data(name, a),
             size,
         )),
         "subsidence.png" => {
-            let chart = charts::subsidence_chart(&well_charts::subsidence_data(name, a), size);
+            let chart =
+                sagline_charts::subsidence_chart(&well_charts::subsidence_data(name, a), size);
             exports::png_download(&meta, &format!("{name}-{file}"), &chart)
         }
         "burial.png" => {
-            let chart = charts::burial_chart(&well_charts::burial_data(name, a), size);
+            let chart = sagline_charts::burial_chart(&well_charts::burial_data(name, a), size);
             exports::png_download(&meta, &format!("{name}-{file}"), &chart)
         }
         "heat-flow.png" => {
-            let chart = charts::heat_flow_chart(&well_charts::heat_flow_data(name, a), size);
+            let chart =
+                sagline_charts::heat_flow_chart(&well_charts::heat_flow_data(name, a), size);
             exports::png_download(&meta, &format!("{name}-{file}"), &chart)
         }
         "history.csv" => {
