@@ -1,6 +1,7 @@
 //! Which of a file's headers is which of our columns: matching by name (any case,
 //! any order), the user's own mapping for odd headers, and depth units.
 
+use super::bounds::{PhysicalRange, check_length};
 use super::problems::{InputProblem, Problems};
 use super::table::{Row, Table, parse_number, read_table};
 use serde::{Deserialize, Serialize};
@@ -440,6 +441,44 @@ impl Field {
     pub(crate) fn required_number(&self, row: &Row, problems: &mut Problems) -> Option<f64> {
         self.required_text(row, problems)?;
         self.number(row, problems)
+    }
+
+    /// `value` (already in the range's unit) when it lies within `range`; otherwise
+    /// the reason is reported in this column and `None` returned. `shown` is how
+    /// the file wrote it when that differs (a depth in feet), for the message.
+    pub(crate) fn within(
+        &self,
+        row: &Row,
+        problems: &mut Problems,
+        value: f64,
+        range: &PhysicalRange,
+        shown: Option<&str>,
+    ) -> Option<f64> {
+        match range.check_written(value, shown) {
+            Ok(v) => Some(v),
+            Err(reason) => {
+                self.problem(row, problems, reason);
+                None
+            }
+        }
+    }
+
+    /// The cell's text when it has at most `max` characters; otherwise reported.
+    pub(crate) fn bounded_text<'r>(
+        &self,
+        row: &'r Row,
+        problems: &mut Problems,
+        what: &str,
+        max: usize,
+    ) -> Option<&'r str> {
+        let text = self.text(row);
+        match check_length(what, text, max) {
+            Ok(()) => Some(text),
+            Err(reason) => {
+                self.problem(row, problems, reason);
+                None
+            }
+        }
     }
 
     /// Report a problem in this column of `row`.

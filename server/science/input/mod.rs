@@ -80,6 +80,7 @@
 //! Fictive-1,Base,2100,145,,,,,
 //! ```
 
+mod bounds;
 mod columns;
 mod guess;
 mod lithology;
@@ -97,6 +98,10 @@ mod tops_roundtrip_tests;
 mod tops_tests;
 mod wells;
 
+pub use bounds::{
+    AGE_MA, COORDINATE_M, DEPTH_M, ERODED_M, MAX_NAME_CHARS, MAX_NOTE_CHARS, PhysicalRange,
+    SEA_LEVEL_M, WATER_DEPTH_M, check_length,
+};
 pub use columns::{ColumnMapping, DepthUnit, FileKind, MatchedColumn};
 pub use guess::guess_mapping;
 pub use lithology::MIX_SUM_TOLERANCE_PERCENT;

@@ -1,5 +1,6 @@
 //! The sea-level file: the study's eustatic curve, sea level above present by age.
 
+use super::bounds::{AGE_MA, SEA_LEVEL_M};
 use super::columns::{ColumnMapping, Columns, FileKind};
 use super::problems::{InputProblem, Problems};
 use crate::{SeaLevelCurve, SeaLevelPoint};
@@ -18,7 +19,9 @@ pub fn parse_sea_level(bytes: &[u8]) -> Result<SeaLevelCurve, Vec<InputProblem>>
     let mut points: Vec<(SeaLevelPoint, usize)> = Vec::with_capacity(table.rows.len());
     for row in table.rows.iter().filter(|r| r.complete) {
         let age_ma = age.required_number(row, &mut problems);
-        let sea_level_m = level.required_number(row, &mut problems);
+        let sea_level_m = level
+            .required_number(row, &mut problems)
+            .and_then(|v| level.within(row, &mut problems, v, &SEA_LEVEL_M, None));
         if let Some(a) = age_ma.filter(|&a| a < 0.0) {
             age.problem(
                 row,
@@ -27,6 +30,7 @@ pub fn parse_sea_level(bytes: &[u8]) -> Result<SeaLevelCurve, Vec<InputProblem>>
             );
             continue;
         }
+        let age_ma = age_ma.and_then(|a| age.within(row, &mut problems, a, &AGE_MA, None));
         if let (Some(age_ma), Some(sea_level_m)) = (age_ma, sea_level_m) {
             points.push((
                 SeaLevelPoint {
@@ -123,6 +127,24 @@ mod tests {
                 .starts_with("the required column sea_level_m is missing"),
             "{}",
             p[0]
+        );
+    }
+
+    #[test]
+    fn impossible_sea_levels_and_ages_are_refused() {
+        let p = parse_sea_level(b"age_ma,sea_level_m\n0,0\n10,5000\n1e12,3\n").unwrap_err();
+        let at: Vec<_> = p.iter().map(|p| (p.line, p.column.as_deref())).collect();
+        assert_eq!(
+            at,
+            [(Some(3), Some("sea_level_m")), (Some(4), Some("age_ma"))]
+        );
+        assert!(
+            p[0].reason
+                .starts_with("5000 m is out of range for a sea level")
+        );
+        assert!(
+            p[1].reason
+                .starts_with("1e12 Ma is out of range for an age")
         );
     }
 }

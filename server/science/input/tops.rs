@@ -1,5 +1,6 @@
 //! The tops file: one row per surface, grouped into validated well columns.
 
+use super::bounds::{AGE_MA, DEPTH_M, ERODED_M, MAX_NAME_CHARS, PhysicalRange, WATER_DEPTH_M};
 use super::columns::{ColumnMapping, Columns, DepthUnit, Field, FileKind};
 use super::lithology::LithologyNames;
 use super::problems::{InputProblem, Problems};
@@ -8,6 +9,9 @@ use crate::{Erosion, LithologyMix, Surface, WaterDepth, WellColumn};
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
 use std::collections::hash_map::Entry;
+
+/// Longest lithology cell (a name or a mix such as `shale:60;sandstone:40`), in characters.
+const MAX_LITHOLOGY_CHARS: usize = 300;
 
 /// How to read a tops file.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
@@ -219,21 +223,37 @@ fn read_row<'t>(
     problems: &mut Problems,
 ) -> (Option<&'t str>, TopRow<'t>) {
     let before = problems.count();
-    let well = f.well.required_text(row, problems);
-    let horizon = f.horizon.required_text(row, problems).unwrap_or("");
+    let well = f.well.required_text(row, problems).and_then(|_| {
+        f.well
+            .bounded_text(row, problems, "the well name", MAX_NAME_CHARS)
+    });
+    let horizon = f
+        .horizon
+        .required_text(row, problems)
+        .and_then(|_| {
+            f.horizon
+                .bounded_text(row, problems, "the horizon name", MAX_NAME_CHARS)
+        })
+        .unwrap_or("");
     let depth_m = f
         .depth
         .required_number(row, problems)
-        .map(|d| units.depth.to_metres(d));
-    let age_ma = f.age.required_number(row, problems);
-    if let Some(age) = age_ma.filter(|&a| a < 0.0) {
-        f.age.problem(
-            row,
-            problems,
-            format!("{age} Ma is negative; ages are millions of years before present"),
-        );
-    }
-    let lithology_text = f.lithology.text(row);
+        .and_then(|d| in_metres(row, &f.depth, units.depth, d, &DEPTH_M, problems));
+    let age_ma = f.age.required_number(row, problems).and_then(|age| {
+        if age < 0.0 {
+            f.age.problem(
+                row,
+                problems,
+                format!("{age} Ma is negative; ages are millions of years before present"),
+            );
+            return None;
+        }
+        f.age.within(row, problems, age, &AGE_MA, None)
+    });
+    let lithology_text = f
+        .lithology
+        .bounded_text(row, problems, "the lithology", MAX_LITHOLOGY_CHARS)
+        .unwrap_or("");
     let lithology = match lithology_text {
         "" => None,
         text => names
@@ -263,12 +283,14 @@ fn read_water_depth(
     unit: DepthUnit,
     problems: &mut Problems,
 ) -> Option<WaterDepth> {
-    let single = f
-        .water_depth
-        .number(row, problems)
-        .map(|v| unit.to_metres(v));
-    let min = f.water_min.number(row, problems).map(|v| unit.to_metres(v));
-    let max = f.water_max.number(row, problems).map(|v| unit.to_metres(v));
+    let read = |field: &Field, problems: &mut Problems| {
+        field
+            .number(row, problems)
+            .and_then(|v| in_metres(row, field, unit, v, &WATER_DEPTH_M, problems))
+    };
+    let single = read(&f.water_depth, problems);
+    let min = read(&f.water_min, problems);
+    let max = read(&f.water_max, problems);
     let (min_given, max_given) = (
         !f.water_min.text(row).is_empty(),
         !f.water_max.text(row).is_empty(),
@@ -364,10 +386,27 @@ fn read_erosion(
         );
         return None;
     }
+    let eroded_m = in_metres(row, &f.eroded, unit, eroded, &ERODED_M, problems);
+    let at = f.eroded_at.within(row, problems, at, &AGE_MA, None);
     Some(Erosion {
-        eroded_m: unit.to_metres(eroded),
-        eroded_at_ma: at,
+        eroded_m: eroded_m?,
+        eroded_at_ma: at?,
     })
+}
+
+/// A length read in `unit`, in metres when it lies within `range`; otherwise the
+/// reason is reported (showing the value as written when it was in feet).
+fn in_metres(
+    row: &Row,
+    field: &Field,
+    unit: DepthUnit,
+    value: f64,
+    range: &PhysicalRange,
+    problems: &mut Problems,
+) -> Option<f64> {
+    let metres = unit.to_metres(value);
+    let written = (unit == DepthUnit::Feet).then(|| format!("{} ft", field.text(row)));
+    field.within(row, problems, metres, range, written.as_deref())
 }
 
 /// Check a well's rows together and build its column; `None` when it has problems

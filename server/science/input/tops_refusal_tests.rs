@@ -405,3 +405,131 @@ fn a_very_broken_file_lists_the_first_problems_and_counts_the_rest() {
         "tops.csv: and 100 more problems"
     );
 }
+
+#[test]
+fn impossible_values_are_refused_with_their_bounds() {
+    // Each row breaks one physical bound (input/bounds.rs); the rest of the file is sound.
+    let cases: [(&[&str], usize, &str, &str); 7] = [
+        (
+            &[
+                "Fictive-1,Top,100,0,shale,,,,",
+                "Fictive-1,Base,200,1e15,,,,,",
+            ],
+            3,
+            "age_ma",
+            "1e15 Ma is out of range for an age (from 0 to 4600 Ma)",
+        ),
+        (
+            &[
+                "Fictive-1,Top,100,0,shale,,,,",
+                "Fictive-1,Base,1e308,10,,,,,",
+            ],
+            3,
+            "depth_m",
+            "1e308 m is out of range for a depth (from -9000 to 30000 m)",
+        ),
+        (
+            &[
+                "Fictive-1,Top,100,0,shale,-20000,10,,",
+                "Fictive-1,Base,200,10,,,,,",
+            ],
+            2,
+            "water_depth_min_m",
+            "-20000 m is out of range for a water depth (from -9000 to 11000 m)",
+        ),
+        (
+            &[
+                "Fictive-1,Top,100,0,shale,0,12000,,",
+                "Fictive-1,Base,200,10,,,,,",
+            ],
+            2,
+            "water_depth_max_m",
+            "12000 m is out of range for a water depth",
+        ),
+        (
+            &[
+                "Fictive-1,Top,100,0,shale,,,,",
+                "Fictive-1,Unc,500,5,shale,,,,",
+                "Fictive-1,Below,500,20,sandstone,,,20000,10",
+                "Fictive-1,Base,900,30,,,,,",
+            ],
+            4,
+            "eroded_m",
+            "20000 m is out of range for an eroded thickness (above 0 to 10000 m)",
+        ),
+        (
+            &[
+                "Fictive-1,Top,100,0,shale,,,,",
+                "Fictive-1,Unc,500,5,shale,,,,",
+                "Fictive-1,Below,500,20,sandstone,,,200,1e9",
+                "Fictive-1,Base,900,30,,,,,",
+            ],
+            4,
+            "eroded_at_ma",
+            "1e9 Ma is out of range for an age",
+        ),
+        (
+            &[
+                "Fictive-1,Top,100,0,shale,,,,",
+                "Fictive-1,Base,200,145000000,,,,,",
+            ],
+            3,
+            "age_ma",
+            "145000000 Ma is out of range for an age",
+        ),
+    ];
+    for (rows, line, column, start) in cases {
+        let (l, c, reason) = only_problem(rows);
+        assert_eq!((l, c.as_str()), (line, column), "{reason}");
+        assert!(reason.starts_with(start), "{reason}");
+    }
+}
+
+#[test]
+fn an_age_column_in_years_says_how_to_fix_it() {
+    let (_, _, reason) = only_problem(&[
+        "Fictive-1,Top,100,0,shale,,,,",
+        "Fictive-1,Base,200,145000000,,,,,",
+    ]);
+    assert!(
+        reason.ends_with("it looks like an age in years: write 145 Ma"),
+        "{reason}"
+    );
+}
+
+#[test]
+fn a_depth_in_feet_out_of_range_is_shown_as_written() {
+    let text = "well,horizon,depth_ft,age_ma,lithology\nFictive-1,Top,100,0,shale\nFictive-1,Base,125000,10,\n";
+    let p = parse(text).unwrap_err();
+    assert_eq!(p.len(), 1, "{p:#?}");
+    assert_eq!(p[0].column.as_deref(), Some("depth_ft"));
+    assert!(
+        p[0].reason
+            .starts_with("125000 ft (38100 m) is out of range for a depth"),
+        "{}",
+        p[0].reason
+    );
+}
+
+#[test]
+fn overlong_names_are_refused() {
+    let long = "W".repeat(101);
+    let rows = [
+        format!("{long},Top,100,0,shale,,,,"),
+        format!("{long},Base,200,10,,,,,"),
+    ];
+    let p = parse(&tops(&rows.iter().map(String::as_str).collect::<Vec<_>>())).unwrap_err();
+    assert!(!p.is_empty());
+    assert!(p.iter().all(|p| p.column.as_deref() == Some("well")
+        && p.reason == "the well name has 101 characters; at most 100 are accepted"));
+    let rows = [
+        format!("Fictive-1,{long},100,0,shale,,,,"),
+        "Fictive-1,Base,200,10,,,,,".to_string(),
+    ];
+    let (line, column, reason) = only_problem(&rows.iter().map(String::as_str).collect::<Vec<_>>());
+    assert_eq!((line, column.as_str()), (2, "horizon"));
+    assert_eq!(
+        reason,
+        "the horizon name has 101 characters; at most 100 are accepted"
+    );
+}

@@ -1,5 +1,6 @@
 //! The wells file: where each well is, and any notes about it.
 
+use super::bounds::{COORDINATE_M, MAX_NAME_CHARS, MAX_NOTE_CHARS, check_length};
 use super::columns::{ColumnMapping, Columns, FileKind};
 use super::problems::{InputProblem, Problems};
 use serde::{Deserialize, Serialize};
@@ -69,16 +70,22 @@ pub fn parse_wells(bytes: &[u8], options: &WellsOptions) -> Result<ParsedWells, 
     let mut first_line: HashMap<&str, usize> = HashMap::new();
     for row in table.rows.iter().filter(|r| r.complete) {
         let before = problems.count();
-        let name = well.required_text(row, &mut problems);
+        let name = well
+            .required_text(row, &mut problems)
+            .and_then(|_| well.bounded_text(row, &mut problems, "the well name", MAX_NAME_CHARS));
         let mut pair = |a: &super::columns::Field, b: &super::columns::Field, limits: [f64; 2]| {
             let values = [a, b].map(|f| f.number(row, &mut problems));
             for (f, (v, limit)) in [a, b].into_iter().zip(values.into_iter().zip(limits)) {
-                if let Some(v) = v.filter(|v| v.abs() > limit) {
-                    f.problem(
+                match v {
+                    Some(v) if limit.is_infinite() => {
+                        f.within(row, &mut problems, v, &COORDINATE_M, None);
+                    }
+                    Some(v) if v.abs() > limit => f.problem(
                         row,
                         &mut problems,
                         format!("{v} is outside -{limit} to {limit} degrees"),
-                    );
+                    ),
+                    _ => {}
                 }
             }
             let given = [a, b].map(|f| !f.text(row).is_empty());
@@ -130,6 +137,10 @@ pub fn parse_wells(bytes: &[u8], options: &WellsOptions) -> Result<ParsedWells, 
             })
             .collect::<Vec<_>>()
             .join("; ");
+        if let Err(reason) = check_length("the text of this row's notes (its other columns)", &notes, MAX_NOTE_CHARS) {
+            problems.at(row.line, None, reason);
+            continue;
+        }
         wells.push(WellLocation {
             name: name.to_string(),
             x: x_m,
@@ -262,5 +273,34 @@ mod tests {
             p[0].to_string(),
             "wells.csv line 2, column y: \"north\" is not a number"
         );
+    }
+
+    #[test]
+    fn coordinates_beyond_any_projection_are_refused() {
+        let p = parse("well,x,y\nFictive-1,1e300,5\n").unwrap_err();
+        assert_eq!(p.len(), 1, "{p:#?}");
+        assert_eq!((p[0].line, p[0].column.as_deref()), (Some(2), Some("x")));
+        assert!(
+            p[0].reason
+                .starts_with("1e300 m is out of range for a map coordinate"),
+            "{}",
+            p[0].reason
+        );
+    }
+
+    #[test]
+    fn overlong_notes_and_names_are_refused() {
+        let note = "n".repeat(MAX_NOTE_CHARS);
+        let p = parse(&format!("well,x,y,remark\nFictive-1,1,2,{note}\n")).unwrap_err();
+        assert_eq!(p.len(), 1, "{p:#?}");
+        assert_eq!(p[0].line, Some(2));
+        assert!(
+            p[0].reason.starts_with("the text of this row's notes (its other columns) has"),
+            "{}",
+            p[0].reason
+        );
+        let name = "W".repeat(MAX_NAME_CHARS + 1);
+        let p = parse(&format!("well,x,y\n{name},1,2\n")).unwrap_err();
+        assert_eq!(p[0].column.as_deref(), Some("well"));
     }
 }
