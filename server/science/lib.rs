@@ -21,6 +21,7 @@ pub mod forward;
 pub mod heat_flow;
 pub mod input;
 pub mod lithology;
+pub mod map_projection;
 pub mod mckenzie;
 pub mod params;
 pub mod phases;

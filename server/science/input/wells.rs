@@ -137,7 +137,11 @@ pub fn parse_wells(bytes: &[u8], options: &WellsOptions) -> Result<ParsedWells, 
             })
             .collect::<Vec<_>>()
             .join("; ");
-        if let Err(reason) = check_length("the text of this row's notes (its other columns)", &notes, MAX_NOTE_CHARS) {
+        if let Err(reason) = check_length(
+            "the text of this row's notes (its other columns)",
+            &notes,
+            MAX_NOTE_CHARS,
+        ) {
             problems.at(row.line, None, reason);
             continue;
         }
@@ -295,7 +299,8 @@ mod tests {
         assert_eq!(p.len(), 1, "{p:#?}");
         assert_eq!(p[0].line, Some(2));
         assert!(
-            p[0].reason.starts_with("the text of this row's notes (its other columns) has"),
+            p[0].reason
+                .starts_with("the text of this row's notes (its other columns) has"),
             "{}",
             p[0].reason
         );
