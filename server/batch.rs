@@ -372,8 +372,8 @@ impl Run<'_> {
     }
 
     /// Every well's report entry in input order, computed chunk by chunk on a producer
-    /// thread while `consume` writes the entries of the chunk before (at most two chunks
-    /// wait in between).
+    /// thread while `consume` writes the chunk before; one finished chunk at most waits
+    /// in between, so about three chunks are held at a time.
     fn stream<R>(
         &self,
         tick: &(dyn Fn() + Sync),
