@@ -7,6 +7,9 @@
 //!   2-core machine.
 //! - `analysis::analyse_wells` alone, on the same wells read from the same file: the
 //!   part of the end-to-end time that is the science.
+//! - Peak memory of `sagline analyze` (with fits, and `--backstrip-only`), measured once
+//!   from the process's high-water mark (`VmHWM`, Linux). Target: under 100 MB, since the
+//!   report is streamed a chunk of wells at a time.
 //!
 //! Few samples, since one run takes seconds.
 
@@ -39,6 +42,44 @@ fn run_analyze_with(tops: &Path, out: &Path, extra: &[&str]) {
     );
 }
 
+/// Peak memory target of one run (MiB).
+const PEAK_MEMORY_TARGET_MIB: f64 = 100.0;
+
+/// Run the binary once as [`run_analyze_with`] does and return its peak resident memory
+/// in MiB: the `VmHWM` line of /proc/PID/status, read every few milliseconds while the
+/// process runs (the high-water mark only grows, so the last reading is the peak but for
+/// the last few milliseconds). `None` where /proc is not available.
+fn peak_memory_mib(tops: &Path, out: &Path, extra: &[&str]) -> Option<f64> {
+    let mut child = Command::new(env!("CARGO_BIN_EXE_sagline"))
+        .arg("analyze")
+        .arg(tops)
+        .arg("--out")
+        .arg(out)
+        .args(extra)
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .expect("start the sagline binary");
+    let status_file = format!("/proc/{}/status", child.id());
+    let mut peak_kib: Option<u64> = None;
+    loop {
+        if let Ok(status) = std::fs::read_to_string(&status_file) {
+            let hwm = status
+                .lines()
+                .find_map(|l| l.strip_prefix("VmHWM:"))
+                .and_then(|v| v.trim().trim_end_matches("kB").trim().parse::<u64>().ok());
+            if let Some(kib) = hwm {
+                peak_kib = Some(peak_kib.map_or(kib, |p| p.max(kib)));
+            }
+        }
+        if let Some(status) = child.try_wait().expect("wait for sagline") {
+            assert!(status.success(), "sagline analyze failed");
+            break;
+        }
+        std::thread::sleep(Duration::from_millis(2));
+    }
+    peak_kib.map(|kib| kib as f64 / 1024.0)
+}
+
 /// The whole analysis: backstripping, phase search, fits and their ranges.
 fn run_analyze(tops: &Path, out: &Path) {
     run_analyze_with(tops, out, &[]);
@@ -60,6 +101,24 @@ fn analyze(c: &mut Criterion) {
     assert_eq!(wells.len(), WELLS);
     let fitted = wells.iter().filter(|w| w["stretching"].is_object()).count();
     eprintln!("analyze: {fitted} of {WELLS} wells have a stretching fit");
+
+    for (what, extra) in [
+        ("with fits", &[][..]),
+        ("--backstrip-only", &["--backstrip-only"][..]),
+    ] {
+        match peak_memory_mib(&tops_path, &out_path, extra) {
+            Some(mib) => {
+                eprintln!(
+                    "analyze {what}: peak memory {mib:.0} MiB (target under {PEAK_MEMORY_TARGET_MIB} MiB)"
+                );
+                assert!(
+                    mib < PEAK_MEMORY_TARGET_MIB,
+                    "analyze {what}: peak memory {mib:.0} MiB"
+                );
+            }
+            None => eprintln!("analyze {what}: peak memory not measured (no /proc)"),
+        }
+    }
 
     let mut group = c.benchmark_group("analyze");
     group

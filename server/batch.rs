@@ -1,15 +1,23 @@
 //! `sagline analyze`: the same parser and validation as the upload, then the whole
 //! analysis, printed as the JSON contract of PRODUCT.md (or CSV, one row per well
-//! and age). Nothing is printed to stdout unless every input is valid and the
-//! output is complete.
+//! and age).
+//!
+//! Every input is read and validated before anything is written: a bad input prints
+//! nothing on stdout and leaves `--out` as it was. Then the wells are analysed in
+//! parallel a chunk at a time and written in input order as they complete, so the
+//! process holds about one chunk of wells, not the whole report. `--out` is written to
+//! a temporary file in the same directory and renamed into place at the end.
 
 use clap::{Args, ValueEnum};
-use sagline_science::analysis::{self, StudyInputs, contract::Report};
+use sagline_science::analysis::contract::{ParametersOut, WellOut};
+use sagline_science::analysis::{self, RiftTiming, StudyInputs};
 use sagline_science::input::{self, InputProblem, TopsOptions};
 use sagline_science::lithology::{Catalogue, Lithology};
-use sagline_science::{ModelParameters, SeaLevelCurve};
-use serde::Deserialize;
+use sagline_science::{ModelParameters, SeaLevelCurve, WellColumn};
+use serde::{Deserialize, Serialize};
+use std::cell::RefCell;
 use std::io::{IsTerminal, Write};
+use std::panic::{AssertUnwindSafe, catch_unwind};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
@@ -236,41 +244,245 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
         catalogue,
         sea_level,
     };
-    let bar = progress_bar(tops.wells.len());
-    let tick = || {
-        if let Some(b) = &bar {
-            b.inc(1);
-        }
-    };
     let timing = |well: &str| {
         picks
             .iter()
             .find(|p| p.well == well)
             .map(|p| vec![(p.rift_onset_ma, p.rift_end_ma)])
     };
-    let results = if args.backstrip_only {
-        analysis::backstrip_wells(&tops.wells, &inputs, &tick)
-    } else {
-        analysis::analyse_wells(&tops.wells, &inputs, &timing, &tick)
+    let run = Run {
+        wells: &tops.wells,
+        inputs: &inputs,
+        timing: &timing,
+        backstrip_only: args.backstrip_only,
     };
+    // Every input is valid: from here on the output is written as the wells complete.
+    let mut sink = Sink::open(args.out.as_deref())?;
+    let bar = progress_bar(tops.wells.len());
+    let tick = || {
+        if let Some(b) = &bar {
+            b.inc(1);
+        }
+    };
+    let written = write_output(&run, args.format, &mut sink.writer, &tick);
     if let Some(b) = bar {
         b.finish_and_clear();
     }
-    let report = analysis::report(&tops.wells, &results, &inputs);
-    let output = render(&report, args.format)?;
-    // The process ends right after writing: let the OS reclaim the analysis (freeing
-    // millions of small allocations one by one would take a noticeable part of a large run).
-    std::mem::forget(report);
-    std::mem::forget(results);
-    std::mem::forget(tops);
-    match &args.out {
-        Some(path) => std::fs::write(path, output)
-            .map_err(|e| BatchError(format!("cannot write {}: {e}", path.display()))),
-        None => {
-            let mut out = std::io::stdout().lock();
-            out.write_all(&output)
-                .and_then(|_| out.flush())
-                .map_err(|e| BatchError(format!("cannot write the output: {e}")))
+    written?;
+    sink.commit()
+}
+
+/// Where the output goes: standard output, or a temporary file beside `--out` that is
+/// renamed over it only once the whole output is written (dropped, it is deleted, so a
+/// failed run leaves no file and an existing `--out` untouched).
+struct Sink {
+    writer: std::io::BufWriter<Box<dyn Write>>,
+    temp: Option<(tempfile::TempPath, PathBuf)>,
+}
+
+/// Output buffer: large writes, few system calls.
+const OUTPUT_BUFFER_BYTES: usize = 1 << 20;
+
+impl Sink {
+    fn open(out: Option<&Path>) -> Result<Sink, BatchError> {
+        let Some(path) = out else {
+            let stdout: Box<dyn Write> = Box::new(std::io::stdout().lock());
+            return Ok(Sink {
+                writer: std::io::BufWriter::with_capacity(OUTPUT_BUFFER_BYTES, stdout),
+                temp: None,
+            });
+        };
+        let cannot =
+            |e: std::io::Error| BatchError(format!("cannot write {}: {e}", path.display()));
+        let dir = match path.parent() {
+            Some(d) if !d.as_os_str().is_empty() => d,
+            _ => Path::new("."),
+        };
+        // Hidden, and named after its target, should an interrupted run leave it behind.
+        let prefix = format!(".{}.", file_name(path));
+        let mut builder = tempfile::Builder::new();
+        builder.prefix(&prefix).suffix(".tmp");
+        // The file a plain create would make (read-write for the owner, readable by others).
+        #[cfg(unix)]
+        builder.permissions(std::os::unix::fs::PermissionsExt::from_mode(0o644));
+        let (file, temp_path) = builder.tempfile_in(dir).map_err(cannot)?.into_parts();
+        let file: Box<dyn Write> = Box::new(file);
+        Ok(Sink {
+            writer: std::io::BufWriter::with_capacity(OUTPUT_BUFFER_BYTES, file),
+            temp: Some((temp_path, path.to_path_buf())),
+        })
+    }
+
+    /// Flush, and move a temporary file into place.
+    fn commit(self) -> Result<(), BatchError> {
+        let Sink { writer, temp } = self;
+        let target = temp.as_ref().map(|(_, p)| p.display().to_string());
+        let cannot = |e: std::io::Error| match &target {
+            Some(t) => BatchError(format!("cannot write {t}: {e}")),
+            None => BatchError(format!("cannot write the output: {e}")),
+        };
+        let mut inner = writer.into_inner().map_err(|e| cannot(e.into_error()))?;
+        inner.flush().map_err(cannot)?;
+        drop(inner);
+        if let Some((temp_path, path)) = temp {
+            temp_path.persist(&path).map_err(|e| cannot(e.error))?;
+        }
+        Ok(())
+    }
+}
+
+/// One analysis run: the validated wells and everything they are analysed with.
+struct Run<'a> {
+    wells: &'a [WellColumn],
+    inputs: &'a StudyInputs,
+    timing: &'a (dyn Fn(&str) -> Option<RiftTiming> + Sync),
+    backstrip_only: bool,
+}
+
+/// Wells analysed together in parallel before their results are written: enough to
+/// keep every core busy, few enough that the process holds little at a time.
+const CHUNK_WELLS: usize = 32;
+
+impl Run<'_> {
+    /// The report entries of `wells`, in their order, analysed in parallel. A well whose
+    /// analysis fails is an entry saying so; so is a well whose analysis panics (a bug,
+    /// reported on stderr by the panic message): one bad well never stops the run.
+    fn well_outs(&self, wells: &[WellColumn], tick: &(dyn Fn() + Sync)) -> Vec<WellOut> {
+        let analyse = |wells: &[WellColumn]| {
+            let results = if self.backstrip_only {
+                analysis::backstrip_wells(wells, self.inputs, tick)
+            } else {
+                analysis::analyse_wells(wells, self.inputs, self.timing, tick)
+            };
+            analysis::report(wells, &results, self.inputs).wells
+        };
+        match catch_unwind(AssertUnwindSafe(|| analyse(wells))) {
+            Ok(outs) => outs,
+            // Find the well that panicked: run the chunk again one well at a time.
+            Err(_) => wells
+                .iter()
+                .map(|w| {
+                    catch_unwind(AssertUnwindSafe(|| analyse(std::slice::from_ref(w))))
+                        .ok()
+                        .and_then(|mut outs| outs.pop())
+                        .unwrap_or_else(|| internal_failure(&w.name))
+                })
+                .collect(),
+        }
+    }
+
+    /// Every well's report entry in input order, computed chunk by chunk on a producer
+    /// thread while `consume` writes the chunk before; one finished chunk at most waits
+    /// in between, so about three chunks are held at a time.
+    fn stream<R>(
+        &self,
+        tick: &(dyn Fn() + Sync),
+        consume: impl FnOnce(&mut dyn Iterator<Item = WellOut>) -> R,
+    ) -> R {
+        let (send, receive) = std::sync::mpsc::sync_channel::<Vec<WellOut>>(1);
+        std::thread::scope(|scope| {
+            let producer = scope.spawn(move || {
+                for chunk in self.wells.chunks(CHUNK_WELLS) {
+                    if send.send(self.well_outs(chunk, tick)).is_err() {
+                        // The writer stopped (a write error): nothing more is wanted.
+                        return;
+                    }
+                }
+            });
+            let mut outs = receive.iter().flatten();
+            let result = consume(&mut outs);
+            drop(outs);
+            // `well_outs` does not panic; should the thread die all the same (out of
+            // memory), the report it cut short must not pass for a whole one.
+            if producer.join().is_err() {
+                std::panic::resume_unwind(Box::new("the analysis thread failed"));
+            }
+            result
+        })
+    }
+}
+
+/// The report entry of a well whose analysis panicked.
+fn internal_failure(well: &str) -> WellOut {
+    WellOut {
+        well: well.to_string(),
+        warnings: vec![
+            "not analysed: an internal error stopped this well's analysis (a bug; the message is on stderr)"
+                .to_string(),
+        ],
+        history: Vec::new(),
+        phases: Vec::new(),
+        stretching: None,
+        fit_note: None,
+    }
+}
+
+/// The JSON contract's report (`analysis::contract::Report`), its wells written one by
+/// one as they come: the same keys in the same order, so the same bytes.
+#[derive(Serialize)]
+struct StreamedReport<'a> {
+    parameters: &'a ParametersOut,
+    wells: StreamedWells<'a>,
+}
+
+/// A JSON array written from an iterator, once.
+struct StreamedWells<'a>(RefCell<Option<&'a mut dyn Iterator<Item = WellOut>>>);
+
+impl Serialize for StreamedWells<'_> {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let wells = self
+            .0
+            .borrow_mut()
+            .take()
+            .ok_or_else(|| serde::ser::Error::custom("the wells were already written"))?;
+        serializer.collect_seq(wells)
+    }
+}
+
+/// Write the whole output of `run` to `out` in `format`, analysing as it goes.
+fn write_output(
+    run: &Run<'_>,
+    format: OutputFormat,
+    out: &mut dyn Write,
+    tick: &(dyn Fn() + Sync),
+) -> Result<(), BatchError> {
+    match format {
+        OutputFormat::Json => {
+            let parameters = analysis::parameters_out(run.inputs);
+            // Indented for reading when the set is small; compact (same content) when it
+            // is large, where indentation would double the size of the file.
+            let pretty = run.wells.len() <= INDENTED_JSON_MAX_WELLS;
+            run.stream(tick, |wells| {
+                let report = StreamedReport {
+                    parameters: &parameters,
+                    wells: StreamedWells(RefCell::new(Some(wells))),
+                };
+                let written = if pretty {
+                    serde_json::to_writer_pretty(&mut *out, &report)
+                } else {
+                    serde_json::to_writer(&mut *out, &report)
+                };
+                written
+                    .map_err(|e| BatchError(format!("cannot write JSON: {e}")))
+                    .and_then(|()| {
+                        out.write_all(b"\n")
+                            .map_err(|e| BatchError(format!("cannot write JSON: {e}")))
+                    })
+            })
+        }
+        OutputFormat::Csv => {
+            let fail = |e: csv::Error| BatchError(format!("cannot write CSV: {e}"));
+            let mut w = csv::Writer::from_writer(&mut *out);
+            w.write_record(analysis::CSV_HEADER).map_err(fail)?;
+            run.stream(tick, |wells| {
+                for well in wells {
+                    for row in analysis::csv_rows(&well) {
+                        w.write_record(&row).map_err(fail)?;
+                    }
+                }
+                w.flush()
+                    .map_err(|e| BatchError(format!("cannot write CSV: {e}")))
+            })
         }
     }
 }
@@ -292,33 +504,3 @@ fn progress_bar(wells: usize) -> Option<indicatif::ProgressBar> {
 
 /// Above this many wells the JSON is written compact rather than indented.
 pub const INDENTED_JSON_MAX_WELLS: usize = 100;
-
-/// The whole output in memory, so that a failure prints nothing partial.
-pub fn render(report: &Report, format: OutputFormat) -> Result<Vec<u8>, BatchError> {
-    match format {
-        OutputFormat::Json => {
-            // Indented for reading when the set is small; compact (same content) when it is
-            // large, where indentation would double the size of the file.
-            let written = if report.wells.len() <= INDENTED_JSON_MAX_WELLS {
-                serde_json::to_vec_pretty(report)
-            } else {
-                serde_json::to_vec(report)
-            };
-            let mut v = written.map_err(|e| BatchError(format!("cannot write JSON: {e}")))?;
-            v.push(b'\n');
-            Ok(v)
-        }
-        OutputFormat::Csv => {
-            let mut w = csv::Writer::from_writer(Vec::new());
-            let fail = |e: csv::Error| BatchError(format!("cannot write CSV: {e}"));
-            w.write_record(analysis::CSV_HEADER).map_err(fail)?;
-            for well in &report.wells {
-                for row in analysis::csv_rows(well) {
-                    w.write_record(&row).map_err(fail)?;
-                }
-            }
-            w.into_inner()
-                .map_err(|e| BatchError(format!("cannot write CSV: {e}")))
-        }
-    }
-}

@@ -173,12 +173,29 @@ async fn the_burial_chart_draws_one_line_per_horizon_of_the_history() {
     }
 }
 
-/// The age at a pixel column, from the chart's own record of its age axis.
+/// The pixel column of an age, from the chart's own record of its age axis (what the
+/// page script reads), checked against the age labels printed under the axis (what a
+/// reader sees): the two must agree.
 fn age_axis(doc: &Document) -> impl Fn(f64) -> f64 {
     let axis = series(doc, "age-axis").pop().expect("an age-axis group");
     let (age_a, px_a) = (attr(&axis, "data-age-a-ma"), attr(&axis, "data-px-a"));
     let (age_b, px_b) = (attr(&axis, "data-age-b-ma"), attr(&axis, "data-px-b"));
-    move |age| px_a + (age - age_a) * (px_b - px_a) / (age_b - age_a)
+    let to_px = move |age: f64| px_a + (age - age_a) * (px_b - px_a) / (age_b - age_a);
+    let ticks: Vec<(f64, f64)> = series(doc, "axes")
+        .iter()
+        .flat_map(|g| g.descendants().filter(|n| n.has_tag_name("text")))
+        .filter(|t| t.attribute("text-anchor") == Some("middle"))
+        .filter_map(|t| Some((t.text()?.trim().parse::<f64>().ok()?, attr(&t, "x"))))
+        .collect();
+    assert!(ticks.len() >= 3, "age labels under the axis: {ticks:?}");
+    for (age, x) in ticks {
+        assert!(
+            (to_px(age) - x).abs() <= PX_SLACK,
+            "the label {age} Ma is at {x} px, the age-axis record puts it at {}",
+            to_px(age)
+        );
+    }
+    to_px
 }
 
 /// The subsidence chart's phase bands are the analysis' phases, drawn at their ages.

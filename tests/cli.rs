@@ -7,7 +7,9 @@
 //! Wells with a clear rift are built by the forward model (`science::forward`), so the
 //! stretching they were built with is known. Every well and horizon name is invented.
 
+use sagline_science::analysis::{self, StudyInputs};
 use sagline_science::forward::{ForwardSpec, ForwardStretching, ForwardSurface, forward_well};
+use sagline_science::input::{self, TopsOptions};
 use sagline_science::lithology::Catalogue;
 use sagline_science::tolerance::assert_relative;
 use sagline_science::{LithologyMix, MixPart, ModelParameters, SeaLevelCurve, WaterDepth};
@@ -757,5 +759,227 @@ fn every_problem_of_every_file_is_listed_together() {
             "orrin_tops.csv line 3, column depth_m",
             "orrin_sea_level.csv line 2, column age_ma",
         ],
+    );
+}
+
+/// The report of `tops` as the JSON contract's own `Report` serialises it, computed in
+/// this process from the same inputs (default parameters and catalogue, no sea level):
+/// what the command's streamed output must equal byte for byte. `pretty` as README
+/// "Batch analysis" says: indented up to 100 wells, compact above.
+fn contract_report_bytes(tops: &str, pretty: bool) -> Vec<u8> {
+    let catalogue = Catalogue::published_defaults();
+    let names: Vec<String> = catalogue
+        .lithologies()
+        .iter()
+        .map(|l| l.name.clone())
+        .collect();
+    let spelling = |n: &str| names.iter().find(|c| c.eq_ignore_ascii_case(n)).cloned();
+    let options = TopsOptions {
+        file_name: Some("tops.csv".into()),
+        ..Default::default()
+    };
+    let parsed = input::parse_tops_with_catalogue(tops.as_bytes(), &options, &spelling)
+        .expect("the invented tops are valid");
+    let inputs = StudyInputs {
+        params: ModelParameters::default(),
+        catalogue: catalogue.clone(),
+        sea_level: SeaLevelCurve::default(),
+    };
+    let results = analysis::analyse_wells(&parsed.wells, &inputs, &|_| None, &|| {});
+    let report = analysis::report(&parsed.wells, &results, &inputs);
+    let mut bytes = if pretty {
+        serde_json::to_vec_pretty(&report)
+    } else {
+        serde_json::to_vec(&report)
+    }
+    .expect("the report serialises");
+    bytes.push(b'\n');
+    bytes
+}
+
+/// `n` copies of the small Orrin well, named `Orrin-001`… in file order.
+fn many_small_wells(n: usize) -> String {
+    let mut csv = String::from("well,horizon,depth_m,age_ma,lithology,water_depth_m\n");
+    for i in 1..=n {
+        for line in SMALL_TOPS.lines().skip(1) {
+            writeln!(csv, "{}", line.replace("Orrin-1", &format!("Orrin-{i:03}")))
+                .expect("write to a String");
+        }
+    }
+    csv
+}
+
+#[test]
+fn the_streamed_report_is_the_contract_report_byte_for_byte() {
+    let ws = Workspace::new();
+    // Few wells: indented JSON.
+    let text = forward_tops(&[KELDA_1, KELDA_2]);
+    let tops = ws.file("kelda_tops.csv", &text);
+    let out = ws.analyze(&[&tops]);
+    assert!(out.status.success(), "stderr: {}", stderr(&out));
+    assert!(
+        out.stdout == contract_report_bytes(&text, true),
+        "the indented report differs from the contract's serialisation"
+    );
+    // Many wells, more than one chunk of them in flight: compact JSON, still in file order.
+    let text = many_small_wells(150);
+    let tops = ws.file("orrin_tops.csv", &text);
+    let target = ws.path("orrin_results.json");
+    let out = ws.analyze(&[&tops, "--out", &target.display().to_string()]);
+    assert!(out.status.success(), "stderr: {}", stderr(&out));
+    let written = std::fs::read(&target).expect("the --out file");
+    assert!(
+        written == contract_report_bytes(&text, false),
+        "the compact report differs from the contract's serialisation"
+    );
+    let report: Value = serde_json::from_slice(&written).expect("JSON");
+    let names: Vec<String> = report["wells"]
+        .as_array()
+        .expect("wells")
+        .iter()
+        .map(|w| w["well"].as_str().expect("a name").to_string())
+        .collect();
+    let expected: Vec<String> = (1..=150).map(|i| format!("Orrin-{i:03}")).collect();
+    assert_eq!(names, expected, "wells in the order of the file");
+}
+
+/// Files in the workspace directory, sorted.
+fn listing(ws: &Workspace) -> Vec<String> {
+    let mut names: Vec<String> = std::fs::read_dir(ws.dir.path())
+        .expect("list the directory")
+        .map(|e| {
+            e.expect("an entry")
+                .file_name()
+                .to_string_lossy()
+                .into_owned()
+        })
+        .collect();
+    names.sort();
+    names
+}
+
+#[test]
+fn a_refused_input_leaves_an_existing_out_file_untouched() {
+    let ws = Workspace::new();
+    let tops = ws.file(
+        "orrin_tops.csv",
+        &SMALL_TOPS.replace(",900,", ",nine hundred,"),
+    );
+    let previous = "{\"an earlier run\": true}\n";
+    ws.file("orrin_results.json", previous);
+    for format in ["json", "csv"] {
+        let out = ws.analyze(&[
+            &tops,
+            "--format",
+            format,
+            "--out",
+            &ws.path("orrin_results.json").display().to_string(),
+        ]);
+        assert_refused(&out, &["orrin_tops.csv line 3, column depth_m"]);
+        assert_eq!(out.status.code(), Some(1), "exit status 1");
+        assert_eq!(
+            std::fs::read_to_string(ws.path("orrin_results.json")).expect("still there"),
+            previous,
+            "{format}: the earlier output is left as it was"
+        );
+        assert_eq!(
+            listing(&ws),
+            ["orrin_results.json", "orrin_tops.csv"],
+            "{format}: no temporary file is left behind"
+        );
+    }
+}
+
+#[test]
+fn a_good_run_replaces_the_out_file_and_leaves_no_temporary_file() {
+    let ws = Workspace::new();
+    let tops = ws.file("orrin_tops.csv", SMALL_TOPS);
+    ws.file(
+        "orrin_results.csv",
+        "an earlier, longer run\n".repeat(1000).as_str(),
+    );
+    let out = ws.analyze(&[
+        &tops,
+        "--format",
+        "csv",
+        "--out",
+        &ws.path("orrin_results.csv").display().to_string(),
+    ]);
+    assert!(out.status.success(), "stderr: {}", stderr(&out));
+    let text = std::fs::read_to_string(ws.path("orrin_results.csv")).expect("the file");
+    assert!(text.starts_with("well,age_ma,"), "{text}");
+    assert_eq!(text.lines().count(), 1 + 3, "only the new rows: {text}");
+    assert_eq!(listing(&ws), ["orrin_results.csv", "orrin_tops.csv"]);
+}
+
+#[test]
+fn an_out_file_in_a_missing_directory_fails_before_any_analysis() {
+    let ws = Workspace::new();
+    let tops = ws.file("orrin_tops.csv", SMALL_TOPS);
+    let target = ws.path("no_such_dir").join("results.json");
+    let out = ws.analyze(&[&tops, "--out", &target.display().to_string()]);
+    assert_refused(&out, &["cannot write", "results.json"]);
+    assert!(!target.exists());
+}
+
+/// Orrin-1, and Vast-1 whose unconformity removed 1.7e308 m of section: a column the
+/// input rules accept (every number finite, the erosion where the rules want it) but
+/// that no restoration can hold, since the restored column is deeper than any `f64`.
+const ONE_WELL_FAILS: &str = "\
+well,horizon,depth_m,age_ma,lithology,water_depth_m,eroded_m,eroded_at_ma
+Orrin-1,Sea floor,150,0,shale,150,,
+Orrin-1,Top Marl,900,30,sandstone,60,,
+Orrin-1,Base Marl,1600,70,,20,,
+Vast-1,Sea floor,0,0,shale,0,,
+Vast-1,Top Vast,1000,10,shale,0,,
+Vast-1,Vast unconformity,1000,20,shale,0,1.7e308,15
+Vast-1,Base Vast,1.7e308,30,,0,,
+Orrin-2,Sea floor,150,0,shale,150,,
+Orrin-2,Top Marl,900,30,sandstone,60,,
+Orrin-2,Base Marl,1600,70,,20,,
+";
+
+#[test]
+fn a_well_that_cannot_be_analysed_is_reported_and_the_others_are_written() {
+    let ws = Workspace::new();
+    let tops = ws.file("vast_tops.csv", ONE_WELL_FAILS);
+    for extra in [&[][..], &["--backstrip-only"][..]] {
+        let mut args = vec![tops.as_str()];
+        args.extend_from_slice(extra);
+        let report = success_json(&ws.analyze(&args));
+        let names: Vec<&str> = report["wells"]
+            .as_array()
+            .expect("wells")
+            .iter()
+            .map(|w| w["well"].as_str().expect("a name"))
+            .collect();
+        assert_eq!(names, ["Orrin-1", "Vast-1", "Orrin-2"], "{extra:?}");
+        let failed = well(&report, "Vast-1");
+        let warning = failed["warnings"][0].as_str().unwrap_or_default();
+        assert!(warning.starts_with("not analysed: "), "{extra:?}: {failed}");
+        assert_eq!(failed["history"].as_array().map(Vec::len), Some(0));
+        assert!(failed["stretching"].is_null());
+        for name in ["Orrin-1", "Orrin-2"] {
+            assert_eq!(
+                well(&report, name)["history"].as_array().map(Vec::len),
+                Some(3),
+                "{extra:?}: {name} is analysed in full"
+            );
+        }
+    }
+    // In CSV the failed well has no rows; the others keep theirs.
+    let out = ws.analyze(&[&tops, "--format", "csv"]);
+    assert!(out.status.success(), "stderr: {}", stderr(&out));
+    let text = String::from_utf8(out.stdout).expect("UTF-8");
+    let wells: Vec<&str> = text
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').next().unwrap_or_default())
+        .collect();
+    assert_eq!(
+        wells,
+        [
+            "Orrin-1", "Orrin-1", "Orrin-1", "Orrin-2", "Orrin-2", "Orrin-2"
+        ]
     );
 }

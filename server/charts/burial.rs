@@ -6,17 +6,14 @@
 //! above that surface, from 0 up to the palaeo-water depth, so its part of the axis
 //! reads negative; the surface itself is drawn as a solid line at 0.
 
-use super::ChartSize;
 use super::frame::{
-    Area, AxesSpec, Chart, DrawResult, LegendEntry, Swatch, TEXT_PX, age_axis, anchored, draw_axes,
-    draw_legend, draw_message, extent, fit_text, font, padded, plot_and_side, render,
-    spread_labels,
+    Area, AxesSpec, ChartSize, LegendEntry, Plot, Swatch, TEXT_PX, age_axis, axes, centred_message,
+    extent, fit_text, font, legend, old_to_young, padded, plot_and_side, render, spread_labels,
 };
 use super::style::{INK, WATER, lithology_colour, with_alpha};
-use super::subsidence::old_to_young;
-use super::svg::{Group, Tags};
-use plotters::prelude::*;
-use plotters::style::text_anchor::{HPos, VPos};
+use super::svg::{
+    Document, Element, HAlign, Paint, VAlign, circle, group, polygon, polyline, text, titled,
+};
 
 /// One horizon's burial depth below the depositional surface through time.
 #[derive(Debug, Clone, PartialEq)]
@@ -64,16 +61,16 @@ pub struct BurialChartData {
 }
 
 /// Width of the strip right of the plot that holds the horizon names.
-const NAME_STRIP: u32 = 150;
+const NAME_STRIP: f64 = 150.0;
 /// Vertical distance between horizon names (px).
 const NAME_GAP: f64 = 15.0;
 
 /// Draw the burial-history chart as an SVG document.
 pub fn burial_chart(data: &BurialChartData, size: ChartSize) -> String {
-    render(size, &data.title, |body, tags| draw(data, body, tags))
+    render(size, &data.title, |doc, body| draw(data, doc, body))
 }
 
-fn draw(data: &BurialChartData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
+fn draw(data: &BurialChartData, doc: &mut Document, body: Area) {
     let horizons: Vec<(&str, Vec<(f64, f64)>)> = data
         .horizons
         .iter()
@@ -81,7 +78,11 @@ fn draw(data: &BurialChartData, body: &Area<'_>, tags: &mut Tags) -> DrawResult 
         .filter(|(_, points)| !points.is_empty())
         .collect();
     if horizons.is_empty() {
-        return draw_message(body, tags, "No burial history to show for this well.");
+        doc.push(centred_message(
+            body,
+            "No burial history to show for this well.",
+        ));
+        return;
     }
     let units: Vec<Vec<(f64, f64, f64)>> =
         data.units.iter().map(|u| unit_outline(u, data)).collect();
@@ -114,47 +115,50 @@ fn draw(data: &BurialChartData, body: &Area<'_>, tags: &mut Tags) -> DrawResult 
     let (top, bottom) = padded(-highest_water, deepest, 0.04, 100.0);
 
     let (plot_panel, side) = plot_and_side(body);
-    let (panel_w, _) = plot_panel.dim_in_pixel();
-    let (plot, names) = plot_panel.split_horizontally(panel_w.saturating_sub(NAME_STRIP));
+    let (panel, names) = plot_panel.split_left((plot_panel.width - NAME_STRIP).max(0.0));
     let spec = AxesSpec {
         x: age_axis(ages),
         y: bottom..top,
         x_desc: "Age (Ma)",
         y_desc: "Depth below depositional surface (m)",
-        y_label_area: 72,
+        y_label_area: 72.0,
         y_ticks: true,
     };
-    let mut chart = draw_axes(&plot, tags, &spec)?;
+    let (plot, axes_group) = axes(panel, &spec);
+    doc.push(axes_group);
 
-    draw_water(&mut chart, &plot, tags, &water)?;
+    if !water.is_empty() {
+        let [range, column] = water_groups(&plot, &water);
+        doc.push(range);
+        doc.push(column);
+    }
     for (unit, outline) in data.units.iter().zip(&units) {
         if outline.len() < 2 {
             continue;
         }
-        let mut polygon: Vec<(f64, f64)> = outline.iter().map(|s| (s.0, s.1)).collect();
-        polygon.extend(outline.iter().rev().map(|s| (s.0, s.2)));
-        let group = Group::new("unit")
-            .attr("data-lithology", &unit.lithology)
-            .attr("data-base-horizon", &unit.base_horizon)
-            .title(&format!("{} above {}", unit.lithology, unit.base_horizon));
-        tags.open(&plot, group)?;
-        chart.draw_series(std::iter::once(Polygon::new(
-            polygon,
-            with_alpha(lithology_colour(&unit.lithology), 0.9).filled(),
-        )))?;
+        let mut outline_points: Vec<(f64, f64)> = outline.iter().map(|s| (s.0, s.1)).collect();
+        outline_points.extend(outline.iter().rev().map(|s| (s.0, s.2)));
+        doc.push(titled(
+            group("unit")
+                .attr("data-lithology", &unit.lithology)
+                .attr("data-base-horizon", &unit.base_horizon)
+                .child(
+                    polygon(plot.points(outline_points))
+                        .fill(with_alpha(lithology_colour(&unit.lithology), 0.9)),
+                ),
+            format!("{} above {}", unit.lithology, unit.base_horizon),
+        ));
     }
-    tags.open(
-        &plot,
-        Group::new("depositional-surface").title("Depositional surface (depth 0)"),
-    )?;
-    let x = chart.x_range();
-    chart.draw_series(LineSeries::new(
-        [(x.start, 0.0), (x.end, 0.0)],
-        INK.stroke_width(2),
-    ))?;
-    tags.close(&plot)?;
+    let x = &plot.x.data;
+    doc.push(titled(
+        group("depositional-surface")
+            .child(polyline(plot.points([(x.start, 0.0), (x.end, 0.0)])).stroke(INK, 2.0)),
+        "Depositional surface (depth 0)",
+    ));
 
-    draw_horizons(&mut chart, &plot, &names, tags, &horizons)?;
+    for element in horizon_groups(&plot, names, &horizons) {
+        doc.push(element);
+    }
 
     let mut lithologies: Vec<&str> = Vec::new();
     for unit in &data.units {
@@ -171,18 +175,19 @@ fn draw(data: &BurialChartData, body: &Area<'_>, tags: &mut Tags) -> DrawResult 
             )
         })
         .collect();
-    let mut below = 6;
+    let mut below = 6.0;
     if !entries.is_empty() {
-        below = draw_legend(&side, tags, "Lithology", &entries, below)?;
+        let (g, y) = legend(side, "Lithology", &entries, below);
+        doc.push(g);
+        below = y;
     }
     if !water.is_empty() {
         let entries = [
             LegendEntry::new("Best estimate", Swatch::Fill(with_alpha(WATER, 0.55))),
             LegendEntry::new("Range", Swatch::Fill(with_alpha(WATER, 0.22))),
         ];
-        draw_legend(&side, tags, "Water column", &entries, below)?;
+        doc.push(legend(side, "Water column", &entries, below).0);
     }
-    Ok(())
 }
 
 /// `shale:60;sandstone:40` as `shale 60%, sandstone 40%`.
@@ -237,105 +242,80 @@ fn unit_outline(unit: &BurialUnit, data: &BurialChartData) -> Vec<(f64, f64, f64
 }
 
 /// Water column from the surface up to the best palaeo-water depth, with the
-/// min-max range lighter behind it.
-fn draw_water(
-    chart: &mut Chart<'_, '_>,
-    plot: &Area<'_>,
-    tags: &mut Tags,
-    water: &[WaterDepthPoint],
-) -> DrawResult {
-    if water.is_empty() {
-        return Ok(());
-    }
+/// min-max range lighter behind it: groups "water-depth-range" and "water-column".
+fn water_groups(plot: &Plot, water: &[WaterDepthPoint]) -> [Element; 2] {
     let mut range: Vec<(f64, f64)> = water.iter().map(|w| (w.age_ma, -w.min_m)).collect();
     range.extend(water.iter().rev().map(|w| (w.age_ma, -w.max_m)));
-    tags.open(
-        plot,
-        Group::new("water-depth-range").title("Palaeo-water depth range"),
-    )?;
-    chart.draw_series(std::iter::once(Polygon::new(
-        range,
-        with_alpha(WATER, 0.22).filled(),
-    )))?;
     let mut column: Vec<(f64, f64)> = water.iter().map(|w| (w.age_ma, 0.0)).collect();
     column.extend(water.iter().rev().map(|w| (w.age_ma, -w.best_m)));
-    tags.open(
-        plot,
-        Group::new("water-column").title("Palaeo-water depth, best estimate"),
-    )?;
-    chart.draw_series(std::iter::once(Polygon::new(
-        column,
-        with_alpha(WATER, 0.55).filled(),
-    )))?;
-    tags.close(plot)?;
-    Ok(())
+    [
+        titled(
+            group("water-depth-range")
+                .child(polygon(plot.points(range)).fill(with_alpha(WATER, 0.22))),
+            "Palaeo-water depth range",
+        ),
+        titled(
+            group("water-column").child(polygon(plot.points(column)).fill(with_alpha(WATER, 0.55))),
+            "Palaeo-water depth, best estimate",
+        ),
+    ]
 }
 
 /// One group "horizon" per horizon with its line (a dot if it has a single point),
-/// then a group "horizon-name" with its name in the strip right of the plot, spread
-/// so that names never overlap and tied to the line's end by a leader.
-fn draw_horizons(
-    chart: &mut Chart<'_, '_>,
-    plot: &Area<'_>,
-    names: &Area<'_>,
-    tags: &mut Tags,
-    horizons: &[(&str, Vec<(f64, f64)>)],
-) -> DrawResult {
-    let plot_origin = plot.get_base_pixel();
-    let names_origin = names.get_base_pixel();
-    let (strip_w, _) = names.dim_in_pixel();
-    let (_, y_px) = chart.plotting_area().get_pixel_range();
-    let ends: Vec<(i32, i32)> = horizons
+/// each followed by a group "horizon-name" with its name in the strip `names` right of
+/// the plot, spread so that names never overlap and tied to the line's end by a leader.
+fn horizon_groups(plot: &Plot, names: Area, horizons: &[(&str, Vec<(f64, f64)>)]) -> Vec<Element> {
+    let area = plot.area;
+    let ends: Vec<(f64, f64)> = horizons
         .iter()
-        .map(|(_, p)| chart.backend_coord(&p[p.len() - 1]))
+        .map(|(_, p)| plot.at(p[p.len() - 1]))
         .collect();
-    let wanted: Vec<f64> = ends.iter().map(|e| f64::from(e.1)).collect();
-    let span = f64::from(y_px.end - y_px.start);
+    let wanted: Vec<f64> = ends.iter().map(|e| e.1).collect();
     // With too many horizons for the height, name every k-th (all keep a tooltip).
-    let stride = ((horizons.len() as f64 * NAME_GAP) / span.max(1.0))
+    let stride = ((horizons.len() as f64 * NAME_GAP) / area.height.max(1.0))
         .ceil()
         .max(1.0) as usize;
     let named: Vec<usize> = (0..horizons.len()).filter(|i| i % stride == 0).collect();
     let placed = spread_labels(
         &named.iter().map(|&i| wanted[i]).collect::<Vec<_>>(),
         NAME_GAP,
-        f64::from(y_px.start) + 6.0,
-        f64::from(y_px.end) - 6.0,
+        area.top + 6.0,
+        area.bottom() - 6.0,
     );
+    let leader = Paint {
+        colour: INK,
+        opacity: 0.5,
+    };
+    let mut out = Vec::new();
     for (i, (name, points)) in horizons.iter().enumerate() {
-        tags.open(
-            plot,
-            Group::new("horizon").attr("data-name", name).title(name),
-        )?;
-        if points.len() >= 2 {
-            chart.draw_series(LineSeries::new(points.iter().copied(), INK.stroke_width(1)))?;
+        let mark = if points.len() >= 2 {
+            polyline(plot.points(points.iter().copied())).stroke(INK, 1.0)
         } else {
-            let (x, y) = ends[i];
-            plot.draw(&Circle::new(
-                (x - plot_origin.0, y - plot_origin.1),
-                3,
-                INK.filled(),
-            ))?;
-        }
+            circle(ends[i], 3.0).fill(INK)
+        };
+        out.push(titled(
+            group("horizon").attr("data-name", *name).child(mark),
+            *name,
+        ));
         if let Some(slot) = named.iter().position(|&k| k == i) {
-            tags.open(names, Group::new("horizon-name").attr("data-name", name))?;
             let (x, y) = ends[i];
-            let label_y = placed[slot].round() as i32;
-            let leader = vec![
-                (x - names_origin.0 + 2, y - names_origin.1),
-                (10, label_y - names_origin.1),
-            ];
-            names.draw(&PathElement::new(leader, INK.mix(0.5).stroke_width(1)))?;
-            let text = fit_text(name, f64::from(strip_w) - 20.0, TEXT_PX);
-            names.draw(&Text::new(
-                text,
-                (14, label_y - names_origin.1),
-                anchored(font(TEXT_PX), HPos::Left, VPos::Center),
-            ))?;
+            let label_y = placed[slot].round();
+            out.push(
+                group("horizon-name")
+                    .attr("data-name", *name)
+                    .child(
+                        polyline(vec![(x + 2.0, y), (names.left + 10.0, label_y)])
+                            .stroke(leader, 1.0),
+                    )
+                    .child(text(
+                        (names.left + 14.0, label_y),
+                        fit_text(name, names.width - 20.0, TEXT_PX),
+                        font(TEXT_PX).align(HAlign::Start, VAlign::Middle),
+                    )),
+            );
         }
     }
-    tags.close(plot)?;
-    Ok(())
+    out
 }
 
 #[cfg(test)]

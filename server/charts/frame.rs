@@ -1,48 +1,60 @@
-//! The frame every chart shares: canvas and title, axes with their labels, the
-//! legend panel, messages, and text sizing.
+//! The frame every chart shares: canvas and title, the plot rectangle and its scales,
+//! axes with their ticks and labels, the legend panel, messages, and text sizing.
 //!
 //! Layout at the default 900 x 480 px: a 40 px title strip on top; below it the
 //! plot on the left and a side panel (legend, colour bar) on the right, so that no
-//! legend ever covers data.
+//! legend ever covers data. All positions are absolute canvas pixels, origin top left.
 
-use super::ChartSize;
-use super::style::{DASH, GRID, INK, INK_SOFT, PAPER};
-use super::svg::{Group, Tags};
-use plotters::coord::Shift;
-use plotters::coord::types::RangedCoordf64;
-use plotters::prelude::*;
-use plotters::style::text_anchor::{HPos, Pos, VPos};
+use super::style::{GRID, INK, INK_SOFT, PAPER};
+use super::svg::{
+    Colour, Document, Element, HAlign, Paint, TextStyle, VAlign, circle, group, line, rect, text,
+};
 use std::ops::Range;
 
-pub(crate) type DrawResult<T = ()> = Result<T, Box<dyn std::error::Error>>;
-pub(crate) type Area<'b> = DrawingArea<SVGBackend<'b>, Shift>;
-pub(crate) type Chart<'a, 'b> =
-    ChartContext<'a, SVGBackend<'b>, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+/// Pixel size of a chart's SVG canvas; the page scales it with CSS.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct ChartSize {
+    pub width: u32,
+    pub height: u32,
+}
+
+impl Default for ChartSize {
+    /// 900 x 480 px: the size the layouts and font sizes are tuned for.
+    fn default() -> Self {
+        ChartSize {
+            width: 900,
+            height: 480,
+        }
+    }
+}
 
 /// Font sizes in CSS pixels at the default chart size; all at least 12 px.
 const TITLE_PX: f64 = 18.0;
 const AXIS_LABEL_PX: f64 = 14.0;
 pub(crate) const TEXT_PX: f64 = 13.0;
 
-const TITLE_STRIP: u32 = 40;
+const TITLE_STRIP: f64 = 40.0;
 /// Height of the strip under the plot for tick labels and the x-axis label.
-const X_LABEL_AREA: u32 = 52;
-/// Chart margins inside the plot panel (top, right, bottom, left).
-const PLOT_MARGIN: (u32, u32, u32, u32) = (14, 14, 6, 8);
+const X_LABEL_AREA: f64 = 52.0;
+/// Chart margins inside the plot panel.
+const MARGIN_TOP: f64 = 14.0;
+const MARGIN_RIGHT: f64 = 14.0;
+const MARGIN_BOTTOM: f64 = 6.0;
+const MARGIN_LEFT: f64 = 8.0;
+/// Length of a tick mark outside the plot, and the gap between it and its label.
+const TICK: f64 = 5.0;
+const TICK_GAP: f64 = 3.0;
+/// At most this many labelled ticks on an axis.
+const X_TICKS: usize = 8;
+const Y_TICKS: usize = 7;
 
-/// A text style of `px` CSS pixels. plotters' SVG backend writes `font-size` as the
-/// given size / 1.24, so we hand it the size times 1.24 ([`super::svg::Tags::finish`]
-/// rounds away the floating-point rest).
-pub(crate) fn font(px: f64) -> TextStyle<'static> {
-    TextStyle::from(("sans-serif", px * 1.24).into_font()).color(&INK)
+/// A text style of `px` CSS pixels in the ink colour, left-aligned on its baseline.
+pub(crate) fn font(px: f64) -> TextStyle {
+    TextStyle::new(px, INK)
 }
 
-pub(crate) fn bold_font(px: f64) -> TextStyle<'static> {
-    TextStyle::from(("sans-serif", px * 1.24, FontStyle::Bold).into_font()).color(&INK)
-}
-
-pub(crate) fn anchored(style: TextStyle<'static>, h: HPos, v: VPos) -> TextStyle<'static> {
-    style.pos(Pos::new(h, v))
+pub(crate) fn bold_font(px: f64) -> TextStyle {
+    font(px).bold()
 }
 
 /// Estimated width of `text` in sans-serif at `px`; a little generous so that
@@ -56,7 +68,7 @@ pub(crate) fn fit_text(text: &str, max_width: f64, px: f64) -> String {
     if text_width(text, px) <= max_width {
         return text.to_string();
     }
-    let keep = ((max_width / (px * 0.58)).floor() as usize).saturating_sub(1);
+    let keep = ((max_width / (px * 0.58)).floor().max(0.0) as usize).saturating_sub(1);
     let mut short: String = text.chars().take(keep).collect();
     short.push('…');
     short
@@ -105,150 +117,274 @@ pub(crate) fn number_label(value: f64) -> String {
     }
 }
 
-/// Draw one chart: white canvas, title, then `draw` on the area below the title.
-/// A drawing error, or a panic inside plotters on odd input, gives a chart that
-/// says so: a chart must never take its page down.
-pub(crate) fn render(
-    size: ChartSize,
-    title: &str,
-    draw: impl FnOnce(&Area<'_>, &mut Tags) -> DrawResult,
-) -> String {
-    let drawn = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-        draw_chart(size, title, draw)
-    }));
-    match drawn {
-        Ok(Ok(svg)) => svg,
-        Ok(Err(e)) => fallback_svg(size, title, &format!("The chart could not be drawn: {e}")),
-        Err(_) => fallback_svg(size, title, "The chart could not be drawn."),
+/// A rectangle of the canvas in pixels.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) struct Area {
+    pub left: f64,
+    pub top: f64,
+    pub width: f64,
+    pub height: f64,
+}
+
+impl Area {
+    pub(crate) fn right(&self) -> f64 {
+        self.left + self.width
+    }
+
+    pub(crate) fn bottom(&self) -> f64 {
+        self.top + self.height
+    }
+
+    /// The strip of `height` px at the top (at most all of it) and the rest below.
+    pub(crate) fn split_top(&self, height: f64) -> (Area, Area) {
+        let h = height.clamp(0.0, self.height);
+        (
+            Area { height: h, ..*self },
+            Area {
+                top: self.top + h,
+                height: self.height - h,
+                ..*self
+            },
+        )
+    }
+
+    /// The strip of `width` px on the left (at most all of it) and the rest right of it.
+    pub(crate) fn split_left(&self, width: f64) -> (Area, Area) {
+        let w = width.clamp(0.0, self.width);
+        (
+            Area { width: w, ..*self },
+            Area {
+                left: self.left + w,
+                width: self.width - w,
+                ..*self
+            },
+        )
+    }
+
+    /// The area less the given margins; never of negative size.
+    fn inset(&self, top: f64, right: f64, bottom: f64, left: f64) -> Area {
+        let width = (self.width - left - right).max(0.0);
+        let height = (self.height - top - bottom).max(0.0);
+        Area {
+            left: self.left + left.min(self.width),
+            top: self.top + top.min(self.height),
+            width,
+            height,
+        }
     }
 }
 
-fn draw_chart(
-    size: ChartSize,
-    title: &str,
-    draw: impl FnOnce(&Area<'_>, &mut Tags) -> DrawResult,
-) -> DrawResult<String> {
-    let mut buf = String::new();
-    let mut tags = Tags::default();
-    (|| -> DrawResult {
-        let root = SVGBackend::with_string(&mut buf, (size.width, size.height)).into_drawing_area();
-        root.fill(&PAPER)?;
-        let (head, body) = root.split_vertically(TITLE_STRIP.min(size.height));
-        tags.open(&head, Group::new("title"))?;
-        let max_title = f64::from(size.width) - 32.0;
-        head.draw(&Text::new(
-            fit_text(title, max_title, TITLE_PX),
-            (16, 12),
-            bold_font(TITLE_PX),
-        ))?;
-        tags.close(&head)?;
-        draw(&body, &mut tags)?;
-        root.present()?;
-        Ok(())
-    })()?;
-    Ok(tags.finish(&buf, title))
+/// A linear map from data values to pixels: `data.start` lies at `px.0`, `data.end`
+/// at `px.1` (either may be the larger, which reverses the axis).
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct Scale {
+    pub data: Range<f64>,
+    pub px: (f64, f64),
 }
 
-/// A plain SVG with a title and a message, written by hand so that it cannot fail.
+impl Scale {
+    pub(crate) fn at(&self, v: f64) -> f64 {
+        let span = self.data.end - self.data.start;
+        if span == 0.0 || !span.is_finite() {
+            return (self.px.0 + self.px.1) / 2.0;
+        }
+        self.px.0 + (v - self.data.start) * (self.px.1 - self.px.0) / span
+    }
+}
+
+/// The plotting rectangle with its two scales.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct Plot {
+    pub area: Area,
+    pub x: Scale,
+    pub y: Scale,
+}
+
+impl Plot {
+    /// The pixel position of the data point `(x, y)`.
+    pub(crate) fn at(&self, (x, y): (f64, f64)) -> (f64, f64) {
+        (self.x.at(x), self.y.at(y))
+    }
+
+    pub(crate) fn points(&self, data: impl IntoIterator<Item = (f64, f64)>) -> Vec<(f64, f64)> {
+        data.into_iter().map(|p| self.at(p)).collect()
+    }
+}
+
+/// Draw one chart: white canvas, title, then `draw` on the area below the title.
+/// A panic while drawing odd input gives a chart that says so: a chart must never
+/// take its page down.
+pub(crate) fn render(
+    size: ChartSize,
+    title: &str,
+    draw: impl FnOnce(&mut Document, Area),
+) -> String {
+    let drawn = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+        let (w, h) = (f64::from(size.width), f64::from(size.height));
+        let mut doc = Document::new(size.width, size.height, title);
+        doc.push(rect(0.0, 0.0, w, h).fill(PAPER));
+        let canvas = Area {
+            left: 0.0,
+            top: 0.0,
+            width: w,
+            height: h,
+        };
+        let (_, body) = canvas.split_top(TITLE_STRIP);
+        doc.push(group("title").child(text(
+            (16.0, 12.0),
+            fit_text(title, w - 32.0, TITLE_PX),
+            bold_font(TITLE_PX).align(HAlign::Start, VAlign::Top),
+        )));
+        draw(&mut doc, body);
+        doc.finish()
+    }));
+    drawn.unwrap_or_else(|_| fallback_svg(size, title, "The chart could not be drawn."))
+}
+
+/// A plain chart with a title and a message.
 fn fallback_svg(size: ChartSize, title: &str, message: &str) -> String {
-    use super::svg::escape;
-    let (w, h) = (size.width, size.height);
-    format!(
-        "<svg width=\"{w}\" height=\"{h}\" viewBox=\"0 0 {w} {h}\" xmlns=\"http://www.w3.org/2000/svg\">\n\
-         <title>{t}</title>\n<rect x=\"0\" y=\"0\" width=\"{w}\" height=\"{h}\" fill=\"#FFFFFF\"/>\n\
-         <g data-series=\"message\"><text x=\"16\" y=\"{y}\" font-family=\"sans-serif\" font-size=\"14\">{m}</text></g>\n</svg>\n",
-        t = escape(title),
-        m = escape(message),
-        y = h / 2,
-    )
+    let (w, h) = (f64::from(size.width), f64::from(size.height));
+    let mut doc = Document::new(size.width, size.height, title);
+    doc.push(rect(0.0, 0.0, w, h).fill(PAPER));
+    doc.push(group("message").child(text((16.0, h / 2.0), message, font(AXIS_LABEL_PX))));
+    doc.finish()
 }
 
 /// Centre a message (such as "No wells to show") in `area`.
-pub(crate) fn draw_message(area: &Area<'_>, tags: &mut Tags, message: &str) -> DrawResult {
-    let (w, h) = area.dim_in_pixel();
-    tags.open(area, Group::new("message"))?;
-    let style = anchored(
-        font(AXIS_LABEL_PX).color(&INK_SOFT),
-        HPos::Center,
-        VPos::Center,
-    );
-    area.draw(&Text::new(
-        fit_text(message, f64::from(w) - 24.0, AXIS_LABEL_PX),
-        (w as i32 / 2, h as i32 / 2),
-        style,
-    ))?;
-    tags.close(area)?;
-    Ok(())
+pub(crate) fn centred_message(area: Area, message: &str) -> Element {
+    group("message").child(text(
+        (area.left + area.width / 2.0, area.top + area.height / 2.0),
+        fit_text(message, area.width - 24.0, AXIS_LABEL_PX),
+        font(AXIS_LABEL_PX)
+            .colour(INK_SOFT)
+            .align(HAlign::Middle, VAlign::Middle),
+    ))
 }
 
 /// Split the body into the plot (left) and a side panel of about 22 % of the width.
-pub(crate) fn plot_and_side<'b>(body: &Area<'b>) -> (Area<'b>, Area<'b>) {
-    let (w, _) = body.dim_in_pixel();
-    let side = (f64::from(w) * 0.22).clamp(150.0, 240.0) as u32;
-    body.split_horizontally(w.saturating_sub(side))
+pub(crate) fn plot_and_side(body: Area) -> (Area, Area) {
+    let side = (body.width * 0.22).clamp(150.0, 240.0).round();
+    body.split_left((body.width - side).max(0.0))
 }
 
-/// The axes of a chart: data ranges as plotters takes them (`x.start` at the left,
-/// `y.start` at the bottom, so a reversed range reverses the axis) and their labels.
+/// The axes of a chart: data ranges with `x.start` at the left and `y.start` at the
+/// bottom (so a reversed range reverses the axis), and their labels.
 pub(crate) struct AxesSpec<'t> {
     pub x: Range<f64>,
     pub y: Range<f64>,
     pub x_desc: &'t str,
     pub y_desc: &'t str,
     /// Width of the strip left of the plot for tick labels and the y-axis label.
-    pub y_label_area: u32,
-    /// Whether to print the y tick labels (false for categorical axes drawn by hand).
+    pub y_label_area: f64,
+    /// Whether to print the y ticks (false for categorical axes drawn by hand).
     pub y_ticks: bool,
 }
 
-/// The pixel size of the plotting rectangle [`draw_axes`] will make in `area` (for
-/// charts whose ranges depend on it, such as a map at equal scale).
-pub(crate) fn plot_pixels(area: &Area<'_>, y_label_area: u32) -> DrawResult<(u32, u32)> {
-    let chart = builder(area, y_label_area).build_cartesian_2d(0.0..1.0, 0.0..1.0)?;
-    Ok(chart.plotting_area().dim_in_pixel())
+/// The plotting rectangle inside `panel` once the margins and label strips are taken.
+pub(crate) fn plot_area(panel: Area, y_label_area: f64) -> Area {
+    panel.inset(
+        MARGIN_TOP,
+        MARGIN_RIGHT,
+        MARGIN_BOTTOM + X_LABEL_AREA,
+        MARGIN_LEFT + y_label_area,
+    )
 }
 
-fn builder<'a, 'b>(area: &'a Area<'b>, y_label_area: u32) -> ChartBuilder<'a, 'b, SVGBackend<'b>> {
-    let (top, right, bottom, left) = PLOT_MARGIN;
-    let mut builder = ChartBuilder::on(area);
-    builder
-        .margin_top(top)
-        .margin_right(right)
-        .margin_bottom(bottom)
-        .margin_left(left)
-        .x_label_area_size(X_LABEL_AREA)
-        .y_label_area_size(y_label_area);
-    builder
-}
-
-/// Build the chart and draw grid, axes, tick labels and axis labels (group "axes").
-pub(crate) fn draw_axes<'a, 'b>(
-    area: &'a Area<'b>,
-    tags: &mut Tags,
-    spec: &AxesSpec<'_>,
-) -> DrawResult<Chart<'a, 'b>> {
-    let mut chart =
-        builder(area, spec.y_label_area).build_cartesian_2d(spec.x.clone(), spec.y.clone())?;
-    tags.open(area, Group::new("axes"))?;
-    let formatter = |v: &f64| number_label(*v);
-    let mut mesh = chart.configure_mesh();
-    mesh.x_desc(spec.x_desc)
-        .y_desc(spec.y_desc)
-        .x_labels(8)
-        .y_labels(if spec.y_ticks { 7 } else { 0 })
-        .x_label_formatter(&formatter)
-        .y_label_formatter(&formatter)
-        .label_style(font(TEXT_PX))
-        .axis_desc_style(font(AXIS_LABEL_PX))
-        .axis_style(INK)
-        .bold_line_style(GRID)
-        .max_light_lines(0);
-    if !spec.y_ticks {
-        mesh.disable_y_mesh();
+/// Values for the ticks of an axis over `a..b` (either order): multiples of 1, 2 or 5
+/// times a power of ten, the finest such step that gives at most `max_count` ticks.
+pub(crate) fn nice_ticks(a: f64, b: f64, max_count: usize) -> Vec<f64> {
+    let (lo, hi) = (a.min(b), a.max(b));
+    if !(a.is_finite() && b.is_finite() && (hi - lo).is_finite()) || max_count == 0 {
+        return Vec::new();
     }
-    mesh.draw()?;
-    tags.close(area)?;
-    Ok(chart)
+    if hi == lo {
+        return vec![lo];
+    }
+    let mut exponent = ((hi - lo) / max_count as f64).log10().floor() as i32 - 1;
+    loop {
+        for m in [1.0, 2.0, 5.0] {
+            let step = m * 10f64.powi(exponent);
+            // A hair of slack so that a tick on the very end of the range counts.
+            let first = (lo / step - 1e-9).ceil();
+            let last = (hi / step + 1e-9).floor();
+            if last - first + 1.0 <= max_count as f64 {
+                return (first as i64..=last as i64)
+                    .map(|i| i as f64 * step)
+                    .collect();
+            }
+        }
+        exponent += 1;
+    }
+}
+
+/// The plot of `panel` for `spec`, and its "axes" group: grid, axis lines, ticks with
+/// their labels, and the axis labels.
+pub(crate) fn axes(panel: Area, spec: &AxesSpec<'_>) -> (Plot, Element) {
+    let area = plot_area(panel, spec.y_label_area);
+    let plot = Plot {
+        area,
+        x: Scale {
+            data: spec.x.clone(),
+            px: (area.left, area.right()),
+        },
+        y: Scale {
+            data: spec.y.clone(),
+            px: (area.bottom(), area.top),
+        },
+    };
+    let mut g = group("axes");
+    let label = font(TEXT_PX);
+    let x_ticks = nice_ticks(spec.x.start, spec.x.end, X_TICKS);
+    for &v in &x_ticks {
+        let x = plot.x.at(v);
+        g.push(line((x, area.top), (x, area.bottom())).stroke(GRID, 1.0));
+    }
+    let y_ticks = if spec.y_ticks {
+        nice_ticks(spec.y.start, spec.y.end, Y_TICKS)
+    } else {
+        Vec::new()
+    };
+    for &v in &y_ticks {
+        let y = plot.y.at(v);
+        g.push(line((area.left, y), (area.right(), y)).stroke(GRID, 1.0));
+    }
+    g.push(line((area.left, area.top), (area.left, area.bottom())).stroke(INK, 1.0));
+    g.push(line((area.left, area.bottom()), (area.right(), area.bottom())).stroke(INK, 1.0));
+    for &v in &x_ticks {
+        let x = plot.x.at(v);
+        let y = area.bottom();
+        g.push(line((x, y), (x, y + TICK)).stroke(INK, 1.0));
+        g.push(text(
+            (x, y + TICK + TICK_GAP),
+            number_label(v),
+            label.align(HAlign::Middle, VAlign::Top),
+        ));
+    }
+    for &v in &y_ticks {
+        let y = plot.y.at(v);
+        let x = area.left;
+        g.push(line((x - TICK, y), (x, y)).stroke(INK, 1.0));
+        g.push(text(
+            (x - TICK - TICK_GAP, y),
+            number_label(v),
+            label.align(HAlign::End, VAlign::Middle),
+        ));
+    }
+    let desc = font(AXIS_LABEL_PX);
+    g.push(text(
+        (
+            area.left + area.width / 2.0,
+            area.bottom() + X_LABEL_AREA - 8.0,
+        ),
+        spec.x_desc,
+        desc.align(HAlign::Middle, VAlign::Baseline),
+    ));
+    g.push(text(
+        (panel.left + MARGIN_LEFT + 2.0, area.top + area.height / 2.0),
+        spec.y_desc,
+        desc.align(HAlign::Middle, VAlign::Top).upright(),
+    ));
+    (plot, g)
 }
 
 /// A range padded by `pad` of its span on both ends; a zero span widens to `min_span`.
@@ -282,13 +418,24 @@ pub(crate) fn extent(values: impl IntoIterator<Item = f64>) -> Option<(f64, f64)
         })
 }
 
+/// Finite points sorted from old to young (largest first coordinate first).
+pub(crate) fn old_to_young(points: &[(f64, f64)]) -> Vec<(f64, f64)> {
+    let mut out: Vec<(f64, f64)> = points
+        .iter()
+        .copied()
+        .filter(|p| p.0.is_finite() && p.1.is_finite())
+        .collect();
+    out.sort_by(|a, b| b.0.total_cmp(&a.0));
+    out
+}
+
 /// How a legend entry shows its series.
 pub(crate) enum Swatch {
-    Line(RGBColor),
-    DashedLine(RGBColor),
-    Fill(RGBAColor),
-    Dot(RGBColor),
-    Hollow(RGBColor),
+    Line(Colour),
+    DashedLine(Colour),
+    Fill(Paint),
+    Dot(Colour),
+    Hollow(Colour),
 }
 
 pub(crate) struct LegendEntry {
@@ -305,103 +452,73 @@ impl LegendEntry {
     }
 }
 
-const LEGEND_ROW: i32 = 22;
+const LEGEND_ROW: f64 = 22.0;
 /// Line spacing of a legend label broken over two lines.
-const LINE_STEP: i32 = 16;
+const LINE_STEP: f64 = 16.0;
 
-/// Draw a legend block with a heading into the side panel from `top` down (group
-/// "legend"). Entries that do not fit are summarised as "+ n more". Returns the y
-/// below the block.
-pub(crate) fn draw_legend(
-    side: &Area<'_>,
-    tags: &mut Tags,
+/// A legend block with a heading in the side panel, `top` px below the panel's top
+/// (group "legend"). Entries that do not fit are summarised as "+ n more". Returns the
+/// group and the offset below the block.
+pub(crate) fn legend(
+    side: Area,
     heading: &str,
     entries: &[LegendEntry],
-    top: i32,
-) -> DrawResult<i32> {
-    let (w, h) = side.dim_in_pixel();
-    let (w, h) = (w as i32, h as i32);
-    let text_left = 44;
-    let max_text = f64::from(w - text_left - 6);
-    tags.open(side, Group::new("legend").attr("data-heading", heading))?;
-    side.draw(&Text::new(
-        fit_text(heading, f64::from(w - 12), TEXT_PX),
-        (8, top),
-        bold_font(TEXT_PX),
-    ))?;
-    let mut y = top + LEGEND_ROW + 2;
+    top: f64,
+) -> (Element, f64) {
+    let text_left = side.left + 44.0;
+    let max_text = side.width - 44.0 - 6.0;
+    let mut g = group("legend").attr("data-heading", heading);
+    g.push(text(
+        (side.left + 8.0, side.top + top),
+        fit_text(heading, side.width - 12.0, TEXT_PX),
+        bold_font(TEXT_PX).align(HAlign::Start, VAlign::Top),
+    ));
+    let mut y = top + LEGEND_ROW + 2.0;
     for (i, entry) in entries.iter().enumerate() {
         let remaining = entries.len() - i;
         let lines = wrap_text(&entry.label, max_text, TEXT_PX, 2);
-        let extra = LINE_STEP * (lines.len() as i32 - 1);
-        if remaining > 1 && y + extra + 2 * LEGEND_ROW > h {
-            let more = format!("+ {remaining} more");
-            side.draw(&Text::new(
-                more,
-                (text_left, y),
-                anchored(font(TEXT_PX).color(&INK_SOFT), HPos::Left, VPos::Center),
-            ))?;
+        let extra = LINE_STEP * (lines.len() as f64 - 1.0);
+        if remaining > 1 && y + extra + 2.0 * LEGEND_ROW > side.height {
+            g.push(text(
+                (text_left, side.top + y),
+                format!("+ {remaining} more"),
+                font(TEXT_PX)
+                    .colour(INK_SOFT)
+                    .align(HAlign::Start, VAlign::Middle),
+            ));
             y += LEGEND_ROW;
             break;
         }
-        draw_swatch(side, tags, heading, &entry.swatch, (8, y))?;
+        g.push(swatch(&entry.swatch, (side.left + 8.0, side.top + y)));
         for (k, line) in lines.into_iter().enumerate() {
-            let at = (text_left, y + LINE_STEP * k as i32);
-            side.draw(&Text::new(
+            g.push(text(
+                (text_left, side.top + y + LINE_STEP * k as f64),
                 line,
-                at,
-                anchored(font(TEXT_PX), HPos::Left, VPos::Center),
-            ))?;
+                font(TEXT_PX).align(HAlign::Start, VAlign::Middle),
+            ));
         }
         y += LEGEND_ROW + extra;
     }
-    tags.close(side)?;
-    Ok(y + 6)
+    (g, y + 6.0)
 }
 
-/// A 28 x 12 px swatch whose left edge is at `x` and vertical centre at `y`.
-fn draw_swatch(
-    side: &Area<'_>,
-    tags: &mut Tags,
-    heading: &str,
-    swatch: &Swatch,
-    (x, y): (i32, i32),
-) -> DrawResult {
+/// A 28 x 14 px swatch whose left edge is at `x` and vertical centre at `y`.
+fn swatch(swatch: &Swatch, (x, y): (f64, f64)) -> Element {
     match swatch {
-        Swatch::Line(c) => {
-            side.draw(&PathElement::new(
-                vec![(x, y), (x + 28, y)],
-                c.stroke_width(3),
-            ))?;
-        }
-        Swatch::DashedLine(c) => {
-            // A dashed segment inside its own group, so the legend stays in "legend".
-            tags.open(
-                side,
-                Group::new("legend-dash").attr("stroke-dasharray", DASH),
-            )?;
-            side.draw(&PathElement::new(
-                vec![(x, y), (x + 28, y)],
-                c.stroke_width(3),
-            ))?;
-            tags.open(side, Group::new("legend").attr("data-heading", heading))?;
-        }
-        Swatch::Fill(c) => {
-            side.draw(&Rectangle::new([(x, y - 7), (x + 28, y + 7)], c.filled()))?;
-            side.draw(&Rectangle::new(
-                [(x, y - 7), (x + 28, y + 7)],
-                INK.mix(0.45).stroke_width(1),
-            ))?;
-        }
-        Swatch::Dot(c) => {
-            side.draw(&Circle::new((x + 14, y), 6, c.filled()))?;
-            side.draw(&Circle::new((x + 14, y), 6, INK.stroke_width(1)))?;
-        }
-        Swatch::Hollow(c) => {
-            side.draw(&Circle::new((x + 14, y), 6, c.stroke_width(2)))?;
-        }
+        Swatch::Line(c) => line((x, y), (x + 28.0, y)).stroke(*c, 3.0),
+        Swatch::DashedLine(c) => line((x, y), (x + 28.0, y))
+            .stroke(*c, 3.0)
+            .keyword("stroke-dasharray", super::style::DASH),
+        Swatch::Fill(paint) => rect(x, y - 7.0, 28.0, 14.0).fill(*paint).stroke(
+            Paint {
+                colour: INK,
+                opacity: 0.45,
+            },
+            1.0,
+        ),
+        Swatch::Dot(c) => circle((x + 14.0, y), 6.0).fill(*c).stroke(INK, 1.0),
+        Swatch::Hollow(c) => circle((x + 14.0, y), 6.0).no_fill().stroke(*c, 2.0),
     }
-    Ok(())
 }
 
 /// Spread label positions (sorted or not) so that neighbours are at least `gap` px
@@ -449,12 +566,95 @@ mod tests {
     }
 
     #[test]
+    fn a_panic_while_drawing_gives_the_fallback_chart() {
+        let svg = render(ChartSize::default(), "Broken", |_, _| panic!("odd input"));
+        assert!(svg.contains("could not be drawn"), "{svg}");
+        roxmltree::Document::parse(&svg).expect("well-formed");
+    }
+
+    #[test]
     fn number_labels_are_short() {
         assert_eq!(number_label(100.0), "100");
         assert_eq!(number_label(12.5), "12.5");
         assert_eq!(number_label(0.30000000000000004), "0.3");
         assert_eq!(number_label(-0.0001), "0");
         assert_eq!(number_label(1.23456), "1.235");
+    }
+
+    #[test]
+    fn ticks_are_round_steps_within_the_range() {
+        // By hand: 0-66 in at most 8 ticks; steps 1, 2 and 5 give 67, 34 and 14 ticks,
+        // 10 gives 0, 10, ..., 60.
+        assert_eq!(
+            nice_ticks(66.0, 0.0, 8),
+            [0.0, 10.0, 20.0, 30.0, 40.0, 50.0, 60.0]
+        );
+        // -100 to 3000 in at most 7: step 200 gives 16, 500 gives 0..3000 (7 ticks).
+        assert_eq!(
+            nice_ticks(-100.0, 3000.0, 7),
+            [0.0, 500.0, 1000.0, 1500.0, 2000.0, 2500.0, 3000.0]
+        );
+        // Northings 6,095,000-6,121,000 in at most 7: 5,000 m apart.
+        assert_eq!(
+            nice_ticks(6_095_000.0, 6_121_000.0, 7),
+            [
+                6_095_000.0,
+                6_100_000.0,
+                6_105_000.0,
+                6_110_000.0,
+                6_115_000.0,
+                6_120_000.0
+            ]
+        );
+        // 0 to 1.12 in at most 7: step 0.2.
+        let ticks: Vec<String> = nice_ticks(0.0, 1.12, 7)
+            .into_iter()
+            .map(number_label)
+            .collect();
+        assert_eq!(ticks, ["0", "0.2", "0.4", "0.6", "0.8", "1"]);
+        assert_eq!(nice_ticks(5.0, 5.0, 7), [5.0]);
+        assert!(nice_ticks(f64::NAN, 1.0, 7).is_empty());
+    }
+
+    #[test]
+    fn the_plot_sits_inside_its_margins_and_maps_data_linearly() {
+        // The default chart by hand: body 900 x 440 below the 40 px title strip; side
+        // panel 0.22 * 900 = 198 px, so the plot panel is 702 px wide. With a 72 px
+        // y-label strip the plot runs from x = 8 + 72 = 80 to 702 - 14 = 688, and from
+        // y = 40 + 14 = 54 to 480 - 6 - 52 = 422.
+        let body = Area {
+            left: 0.0,
+            top: 40.0,
+            width: 900.0,
+            height: 440.0,
+        };
+        let (panel, side) = plot_and_side(body);
+        assert_eq!((panel.width, side.left, side.width), (702.0, 702.0, 198.0));
+        let spec = AxesSpec {
+            x: 120.0..0.0,
+            y: 3000.0..0.0,
+            x_desc: "Age (Ma)",
+            y_desc: "Depth (m)",
+            y_label_area: 72.0,
+            y_ticks: true,
+        };
+        let (plot, _) = axes(panel, &spec);
+        assert_eq!(
+            plot.area,
+            Area {
+                left: 80.0,
+                top: 54.0,
+                width: 608.0,
+                height: 368.0
+            }
+        );
+        // 120 Ma on the left edge, 0 Ma on the right, 60 Ma halfway: 80 + 304 = 384.
+        assert_eq!(plot.at((120.0, 3000.0)), (80.0, 422.0));
+        assert_eq!(plot.at((0.0, 0.0)), (688.0, 54.0));
+        assert_eq!(plot.at((60.0, 1500.0)), (384.0, 238.0));
+        // 30 Ma is a quarter of the way from the right: 688 - 152 = 536; 750 m is a
+        // quarter of the way down from the top: 54 + 92 = 146.
+        assert_eq!(plot.at((30.0, 750.0)), (536.0, 146.0));
     }
 
     #[test]

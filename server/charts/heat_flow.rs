@@ -1,15 +1,13 @@
 //! The heat-flow chart of the well page: surface heat flow through time from the
 //! stretching fit, against the equilibrium (pre-rift) heat flow.
 
-use super::ChartSize;
 use super::frame::{
-    Area, AxesSpec, DrawResult, LegendEntry, Swatch, age_axis, draw_axes, draw_legend,
-    draw_message, extent, number_label, plot_and_side, render,
+    Area, AxesSpec, ChartSize, LegendEntry, Swatch, age_axis, axes, centred_message, extent,
+    legend, number_label, old_to_young, plot_and_side, render,
 };
 use super::style::{DASH, HEAT, REFERENCE, phase_colour};
-use super::subsidence::{PhaseBand, draw_phase_bands, old_to_young};
-use super::svg::{Group, Tags};
-use plotters::prelude::*;
+use super::subsidence::{PhaseBand, line_with_points, phase_bands};
+use super::svg::{Document, group, polyline, titled};
 
 /// Everything the heat-flow chart shows.
 #[derive(Debug, Clone, Default, PartialEq)]
@@ -25,17 +23,20 @@ pub struct HeatFlowChartData {
 
 /// Draw the heat-flow chart as an SVG document.
 pub fn heat_flow_chart(data: &HeatFlowChartData, size: ChartSize) -> String {
-    render(size, &data.title, |body, tags| draw(data, body, tags))
+    render(size, &data.title, |doc, body| draw(data, doc, body))
 }
 
-fn draw(data: &HeatFlowChartData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
+/// Above this many points the curve is drawn without a dot at each.
+const MAX_DOTTED_POINTS: usize = 60;
+
+fn draw(data: &HeatFlowChartData, doc: &mut Document, body: Area) {
     let curve = old_to_young(&data.heat_flow);
     if curve.is_empty() {
-        return draw_message(
+        doc.push(centred_message(
             body,
-            tags,
             "No heat flow to show: the well has no stretching fit yet.",
-        );
+        ));
+        return;
     }
     let equilibrium = data.equilibrium_mw_m2.filter(|v| v.is_finite());
     let phases: Vec<&PhaseBand> = data
@@ -47,38 +48,42 @@ fn draw(data: &HeatFlowChartData, body: &Area<'_>, tags: &mut Tags) -> DrawResul
         .iter()
         .map(|p| p.0)
         .chain(phases.iter().flat_map(|p| [p.from_ma, p.to_ma]));
-    let (_, highest) = extent(curve.iter().map(|p| p.1).chain(equilibrium)).unwrap_or((0.0, 1.0));
-    // Heat flow is positive: the axis starts at 0 so that changes are seen in proportion.
+    let (lowest, highest) =
+        extent(curve.iter().map(|p| p.1).chain(equilibrium)).unwrap_or((0.0, 1.0));
+    // Heat flow is positive: the axis starts at 0 so that changes are seen in proportion
+    // (and lower only for a value below 0, which then stays on the chart).
     let top = if highest > 0.0 { highest * 1.12 } else { 1.0 };
-    let (plot, side) = plot_and_side(body);
+    let bottom = lowest.min(0.0);
+    let (panel, side) = plot_and_side(body);
     let spec = AxesSpec {
         x: age_axis(ages),
-        y: 0.0..top,
+        y: bottom..top,
         x_desc: "Age (Ma)",
         y_desc: "Surface heat flow (mW/m²)",
-        y_label_area: 64,
+        y_label_area: 64.0,
         y_ticks: true,
     };
-    let mut chart = draw_axes(&plot, tags, &spec)?;
-    draw_phase_bands(&mut chart, &plot, tags, &phases)?;
-    if let Some(q) = equilibrium {
-        let x = chart.x_range();
-        let group = Group::new("equilibrium")
-            .attr("data-value", q)
-            .attr("stroke-dasharray", DASH)
-            .title(&format!("Equilibrium {} mW/m²", number_label(q)));
-        tags.open(&plot, group)?;
-        chart.draw_series(LineSeries::new(
-            [(x.start, q), (x.end, q)],
-            REFERENCE.stroke_width(2),
-        ))?;
+    let (plot, axes_group) = axes(panel, &spec);
+    doc.push(axes_group);
+    for band in phase_bands(&plot, &phases) {
+        doc.push(band);
     }
-    tags.open(&plot, Group::new("heat-flow").title("Surface heat flow"))?;
-    let points = if curve.len() > 60 { 0 } else { 3 };
-    chart.draw_series(
-        LineSeries::new(curve.iter().copied(), HEAT.stroke_width(2)).point_size(points),
-    )?;
-    tags.close(&plot)?;
+    if let Some(q) = equilibrium {
+        let x = &plot.x.data;
+        doc.push(titled(
+            group("equilibrium")
+                .attr("data-value", q)
+                .keyword("stroke-dasharray", DASH)
+                .child(polyline(plot.points([(x.start, q), (x.end, q)])).stroke(REFERENCE, 2.0)),
+            format!("Equilibrium {} mW/m²", number_label(q)),
+        ));
+    }
+    let heat = if curve.len() > MAX_DOTTED_POINTS {
+        group("heat-flow").child(polyline(plot.points(curve.iter().copied())).stroke(HEAT, 2.0))
+    } else {
+        line_with_points(&plot, &curve, HEAT, group("heat-flow"))
+    };
+    doc.push(titled(heat, "Surface heat flow"));
 
     let mut entries = vec![LegendEntry::new("Heat flow (fit)", Swatch::Line(HEAT))];
     if let Some(q) = equilibrium {
@@ -87,16 +92,16 @@ fn draw(data: &HeatFlowChartData, body: &Area<'_>, tags: &mut Tags) -> DrawResul
             Swatch::DashedLine(REFERENCE),
         ));
     }
-    let below = draw_legend(&side, tags, "Series", &entries, 6)?;
+    let (series, below) = legend(side, "Series", &entries, 6.0);
+    doc.push(series);
     if !phases.is_empty() {
         let entries: Vec<LegendEntry> = phases
             .iter()
             .enumerate()
             .map(|(i, p)| LegendEntry::new(p.name.clone(), Swatch::Fill(phase_colour(&p.name, i))))
             .collect();
-        draw_legend(&side, tags, "Phases", &entries, below)?;
+        doc.push(legend(side, "Phases", &entries, below).0);
     }
-    Ok(())
 }
 
 #[cfg(test)]

@@ -2,13 +2,17 @@
 //!
 //! Every chart is a pure function: a plain input struct defined here (the web layer
 //! maps its own views into it) and a [`ChartSize`] in, an SVG document as a `String`
-//! out. No I/O, no state. Drawing goes through `plotters`' SVG backend; text is
+//! out. No I/O, no state. Charts are drawn with the crate's own small typed SVG
+//! writer (`svg`), which escapes every text and attribute by construction; text is
 //! written as `font-family="sans-serif"` and laid out with estimated widths.
+//!
+//! Modules depend one way only: `svg` (the writer) <- `style` (palette) <- `frame`
+//! (layout, axes, legends) <- the charts; `png` stands alone.
 //!
 //! Conventions shared by all charts:
 //! - geological time runs left (old) to right (young): the x axis is age in Ma, reversed;
 //! - depths increase downwards;
-//! - each series is wrapped in `<g data-series="…">` (with `data-*` attributes and a
+//! - each series is a `<g data-series="…">` group (with `data-*` attributes and a
 //!   `<title>` where useful) so tests and page scripts can find it;
 //! - missing or empty data gives a chart with a message instead of a panic.
 
@@ -28,26 +32,10 @@ mod test_support;
 pub use burial::{
     BurialChartData, BurialHorizon, BurialUnit, BurialUnitStep, WaterDepthPoint, burial_chart,
 };
+pub use frame::ChartSize;
 pub use heat_flow::{HeatFlowChartData, heat_flow_chart};
 pub use png::svg_to_png;
 pub use rift_timing::{RiftTimingData, RiftTimingWell, rift_timing_chart};
 pub use style::{lithology_colour_hex, sequential_colour_hex};
 pub use subsidence::{PhaseBand, SubsidenceChartData, TectonicPoint, subsidence_chart};
 pub use well_map::{MAX_NAMED_WELLS, MapWell, WellMapData, well_map_chart};
-
-/// Pixel size of a chart's SVG canvas; the page scales it with CSS.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub struct ChartSize {
-    pub width: u32,
-    pub height: u32,
-}
-
-impl Default for ChartSize {
-    /// 900 x 480 px: the size the layouts and font sizes are tuned for.
-    fn default() -> Self {
-        ChartSize {
-            width: 900,
-            height: 480,
-        }
-    }
-}

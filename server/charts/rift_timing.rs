@@ -1,16 +1,13 @@
 //! The rift-timing chart of the study overview: one bar per well from rift onset
 //! to rift end, oldest onset at the top, so that diachronous rifting shows at a glance.
 
-use super::ChartSize;
 use super::frame::{
-    Area, AxesSpec, DrawResult, LegendEntry, Swatch, TEXT_PX, age_axis, anchored, draw_axes,
-    draw_legend, draw_message, fit_text, font, number_label, padded, plot_and_side, render,
-    text_width, wrap_text,
+    Area, AxesSpec, ChartSize, LegendEntry, Swatch, TEXT_PX, age_axis, axes, centred_message,
+    extent, fit_text, font, legend, number_label, padded, plot_and_side, render, text_width,
+    wrap_text,
 };
 use super::style::{INK, INK_SOFT, RIFT_BAR, with_alpha};
-use super::svg::{Group, Tags};
-use plotters::prelude::*;
-use plotters::style::text_anchor::{HPos, VPos};
+use super::svg::{Document, HAlign, VAlign, group, rect_between, text, titled};
 
 /// A well's fitted rift interval.
 #[derive(Debug, Clone, PartialEq)]
@@ -38,22 +35,23 @@ const BAR_COLOUR_ALPHA: f64 = 0.85;
 
 /// Draw the rift-timing chart as an SVG document.
 pub fn rift_timing_chart(data: &RiftTimingData, size: ChartSize) -> String {
-    render(size, &data.title, |body, tags| draw(data, body, tags))
+    render(size, &data.title, |doc, body| draw(data, doc, body))
 }
 
-fn draw(data: &RiftTimingData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
+fn draw(data: &RiftTimingData, doc: &mut Document, body: Area) {
     let mut wells: Vec<&RiftTimingWell> = data
         .wells
         .iter()
         .filter(|w| w.rift_onset_ma.is_finite() && w.rift_end_ma.is_finite())
         .collect();
     if wells.is_empty() {
-        let message = if data.wells_without_fit.is_empty() {
+        let text = if data.wells_without_fit.is_empty() {
             "No wells in this study yet."
         } else {
             "No wells with a stretching fit yet."
         };
-        return draw_message(body, tags, message);
+        doc.push(centred_message(body, text));
+        return;
     }
     // Oldest onset first (top row); ties by name so the order is stable.
     wells.sort_by(|a, b| {
@@ -63,13 +61,13 @@ fn draw(data: &RiftTimingData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
     });
     let rows = wells.len() as f64;
 
-    let (plot, side) = plot_and_side(body);
+    let (panel, side) = plot_and_side(body);
     let longest = wells
         .iter()
         .map(|w| text_width(&w.name, TEXT_PX))
         .fold(0.0, f64::max);
-    let name_room = longest.clamp(40.0, 160.0);
-    let (young, old) = super::frame::extent(wells.iter().flat_map(|w| {
+    let name_room = longest.clamp(40.0, 160.0).round();
+    let (young, old) = extent(wells.iter().flat_map(|w| {
         [w.rift_onset_ma, w.rift_end_ma]
             .into_iter()
             .chain(w.later_events.iter().flat_map(|&(o, e)| [o, e]))
@@ -80,16 +78,16 @@ fn draw(data: &RiftTimingData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
     let spec = AxesSpec {
         // Ages are not negative: the padding stops at the present.
         x: age_axis([young.max(0.0), old]),
+        // Row 0 at the top.
         y: rows..0.0,
         x_desc: "Age (Ma)",
         y_desc: "Well",
-        y_label_area: name_room as u32 + 34,
+        y_label_area: name_room + 34.0,
         y_ticks: false,
     };
-    let chart = draw_axes(&plot, tags, &spec)?;
-    let origin = plot.get_base_pixel();
-    let (x_px, y_px) = chart.plotting_area().get_pixel_range();
-    let pitch = f64::from(y_px.end - y_px.start) / rows;
+    let (plot, axes_group) = axes(panel, &spec);
+    doc.push(axes_group);
+    let pitch = plot.area.height / rows;
     let stride = (NAME_GAP / pitch.max(0.1)).ceil().max(1.0) as usize;
 
     for (i, well) in wells.iter().enumerate() {
@@ -100,22 +98,15 @@ fn draw(data: &RiftTimingData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
             number_label(well.rift_onset_ma),
             number_label(well.rift_end_ma)
         );
-        let group = Group::new("rift-interval")
-            .attr("data-name", &well.name)
-            .attr("data-onset-ma", well.rift_onset_ma)
-            .attr("data-end-ma", well.rift_end_ma)
-            .title(&title);
-        tags.open(&plot, group)?;
-        let (top, bottom) = (
-            row + 0.5 - bar_half_height(pitch),
-            row + 0.5 + bar_half_height(pitch),
+        let mut bar = titled(
+            group("rift-interval")
+                .attr("data-name", &well.name)
+                .attr("data-onset-ma", well.rift_onset_ma)
+                .attr("data-end-ma", well.rift_end_ma),
+            title,
         );
-        let corners = |(left, up): (i32, i32), (right, down): (i32, i32)| {
-            [
-                (left - origin.0, up - origin.1),
-                (right - origin.0, down - origin.1),
-            ]
-        };
+        let half = bar_half_height(pitch);
+        let (top, bottom) = (plot.y.at(row + 0.5 - half), plot.y.at(row + 0.5 + half));
         let intervals = std::iter::once((well.rift_onset_ma, well.rift_end_ma)).chain(
             well.later_events
                 .iter()
@@ -123,57 +114,54 @@ fn draw(data: &RiftTimingData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
                 .filter(|(o, e)| o.is_finite() && e.is_finite()),
         );
         for (k, (onset, end)) in intervals.enumerate() {
-            let a = chart.backend_coord(&(onset, top));
-            let b = chart.backend_coord(&(end, bottom));
-            let (left, right) = (a.0.min(b.0), a.0.max(b.0).max(a.0.min(b.0) + 2));
-            let rect = corners((left, a.1.min(b.1)), (right, a.1.max(b.1)));
+            let (a, b) = (plot.x.at(onset), plot.x.at(end));
+            // At least 2 px wide, so that a rift of no duration still shows.
+            let (left, right) = (a.min(b), a.max(b).max(a.min(b) + 2.0));
             // A later event is drawn lighter, so the first rift stays the eye's anchor.
             let alpha = if k == 0 {
                 BAR_COLOUR_ALPHA
             } else {
                 BAR_COLOUR_ALPHA * 0.45
             };
-            plot.draw(&Rectangle::new(rect, with_alpha(RIFT_BAR, alpha).filled()))?;
-            plot.draw(&Rectangle::new(rect, INK.stroke_width(1)))?;
+            bar.push(
+                rect_between((left, top), (right, bottom))
+                    .fill(with_alpha(RIFT_BAR, alpha))
+                    .stroke(INK, 1.0),
+            );
         }
         if i % stride == 0 {
-            let (_, centre) = chart.backend_coord(&(well.rift_onset_ma, row + 0.5));
-            let at = (x_px.start - 8 - origin.0, centre - origin.1);
-            let name = fit_text(&well.name, name_room, TEXT_PX);
-            plot.draw(&Text::new(
-                name,
-                at,
-                anchored(font(TEXT_PX), HPos::Right, VPos::Center),
-            ))?;
+            bar.push(text(
+                (plot.area.left - 8.0, plot.y.at(row + 0.5)),
+                fit_text(&well.name, name_room, TEXT_PX),
+                font(TEXT_PX).align(HAlign::End, VAlign::Middle),
+            ));
         }
+        doc.push(bar);
     }
-    tags.close(&plot)?;
 
     let entries = [LegendEntry::new(
         "Rift interval, onset to end",
         Swatch::Fill(with_alpha(RIFT_BAR, BAR_COLOUR_ALPHA)),
     )];
-    let below = draw_legend(&side, tags, "Wells by rift onset", &entries, 6)?;
+    let (legend_group, below) = legend(side, "Wells by rift onset", &entries, 6.0);
+    doc.push(legend_group);
     if !data.wells_without_fit.is_empty() {
-        let (side_w, _) = side.dim_in_pixel();
         let note = format!("No fit: {}", data.wells_without_fit.join(", "));
-        tags.open(
-            &side,
-            Group::new("note").attr("data-count", data.wells_without_fit.len()),
-        )?;
-        for (k, line) in wrap_text(&note, f64::from(side_w) - 16.0, TEXT_PX, 4)
+        let mut g = group("note").attr("data-count", data.wells_without_fit.len());
+        for (k, line) in wrap_text(&note, side.width - 16.0, TEXT_PX, 4)
             .into_iter()
             .enumerate()
         {
-            side.draw(&Text::new(
+            g.push(text(
+                (side.left + 8.0, side.top + below + 16.0 * k as f64),
                 line,
-                (8, below + 16 * k as i32),
-                font(TEXT_PX).color(&INK_SOFT),
-            ))?;
+                font(TEXT_PX)
+                    .colour(INK_SOFT)
+                    .align(HAlign::Start, VAlign::Top),
+            ));
         }
-        tags.close(&side)?;
+        doc.push(g);
     }
-    Ok(())
 }
 
 /// Half a bar's height in row units: 30 % of the row, but at most 11 px tall overall.

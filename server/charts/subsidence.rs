@@ -2,16 +2,14 @@
 //! time, the tectonic curve's water-depth range, the fitted model curve and the
 //! rift phases as shaded bands.
 
-use super::ChartSize;
 use super::frame::{
-    Area, AxesSpec, Chart, DrawResult, LegendEntry, Swatch, TEXT_PX, age_axis, anchored, draw_axes,
-    draw_legend, draw_message, extent, font, number_label, padded, plot_and_side, render,
-    text_width,
+    Area, AxesSpec, ChartSize, LegendEntry, Plot, Swatch, TEXT_PX, age_axis, axes, centred_message,
+    extent, font, legend, number_label, old_to_young, padded, plot_and_side, render, text_width,
 };
 use super::style::{BAND_OPACITY, DASH, MODEL, TECTONIC, TOTAL, phase_colour, with_alpha};
-use super::svg::{Group, Tags};
-use plotters::prelude::*;
-use plotters::style::text_anchor::{HPos, VPos};
+use super::svg::{
+    Document, Element, HAlign, VAlign, circle, group, polygon, polyline, rect_between, text, titled,
+};
 
 /// Tectonic subsidence at one age: the best estimate and the range that follows
 /// from the palaeo-water-depth range (m below sea level).
@@ -49,10 +47,10 @@ pub struct SubsidenceChartData {
 
 /// Draw the subsidence chart as an SVG document.
 pub fn subsidence_chart(data: &SubsidenceChartData, size: ChartSize) -> String {
-    render(size, &data.title, |body, tags| draw(data, body, tags))
+    render(size, &data.title, |doc, body| draw(data, doc, body))
 }
 
-fn draw(data: &SubsidenceChartData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
+fn draw(data: &SubsidenceChartData, doc: &mut Document, body: Area) {
     let mut tectonic: Vec<TectonicPoint> = data
         .tectonic
         .iter()
@@ -72,7 +70,11 @@ fn draw(data: &SubsidenceChartData, body: &Area<'_>, tags: &mut Tags) -> DrawRes
         .filter(|p| p.from_ma.is_finite() && p.to_ma.is_finite())
         .collect();
     if tectonic.is_empty() && total.is_empty() {
-        return draw_message(body, tags, "No subsidence history to show for this well.");
+        doc.push(centred_message(
+            body,
+            "No subsidence history to show for this well.",
+        ));
+        return;
     }
 
     let ages = tectonic
@@ -86,62 +88,52 @@ fn draw(data: &SubsidenceChartData, body: &Area<'_>, tags: &mut Tags) -> DrawRes
         .chain(total.iter().chain(&model).map(|p| p.1));
     let (shallow, deep) = extent(depths).unwrap_or((0.0, 1.0));
     let (top, bottom) = padded(shallow.min(0.0), deep.max(0.0), 0.04, 100.0);
-    let (plot, side) = plot_and_side(body);
+    let (panel, side) = plot_and_side(body);
     let spec = AxesSpec {
         x: age_axis(ages),
         y: bottom..top.min(0.0),
         x_desc: "Age (Ma)",
         y_desc: "Subsidence below sea level (m)",
-        y_label_area: 72,
+        y_label_area: 72.0,
         y_ticks: true,
     };
-    let mut chart = draw_axes(&plot, tags, &spec)?;
-    mark_age_axis(&chart, &plot, tags)?;
-
-    draw_phase_bands(&mut chart, &plot, tags, &phases)?;
+    let (plot, axes_group) = axes(panel, &spec);
+    doc.push(axes_group);
+    doc.push(age_axis_record(&plot));
+    for band in phase_bands(&plot, &phases) {
+        doc.push(band);
+    }
 
     if !tectonic.is_empty() {
         let mut outline: Vec<(f64, f64)> = tectonic.iter().map(|p| (p.age_ma, p.min_m)).collect();
         outline.extend(tectonic.iter().rev().map(|p| (p.age_ma, p.max_m)));
-        tags.open(
-            &plot,
-            Group::new("tectonic-range").title("Tectonic subsidence: water-depth range"),
-        )?;
-        chart.draw_series(std::iter::once(Polygon::new(
-            outline,
-            with_alpha(TECTONIC, BAND_OPACITY).filled(),
-        )))?;
+        doc.push(titled(
+            group("tectonic-range")
+                .child(polygon(plot.points(outline)).fill(with_alpha(TECTONIC, BAND_OPACITY))),
+            "Tectonic subsidence: water-depth range",
+        ));
     }
     if !total.is_empty() {
-        tags.open(
-            &plot,
-            Group::new("total-subsidence").title("Total subsidence"),
-        )?;
-        chart.draw_series(
-            LineSeries::new(total.iter().copied(), TOTAL.stroke_width(2)).point_size(3),
-        )?;
+        doc.push(titled(
+            line_with_points(&plot, &total, TOTAL, group("total-subsidence")),
+            "Total subsidence",
+        ));
     }
     if !tectonic.is_empty() {
-        tags.open(
-            &plot,
-            Group::new("tectonic-best").title("Tectonic subsidence (best)"),
-        )?;
-        let line = tectonic.iter().map(|p| (p.age_ma, p.best_m));
-        chart.draw_series(LineSeries::new(line, TECTONIC.stroke_width(2)).point_size(3))?;
+        let best: Vec<(f64, f64)> = tectonic.iter().map(|p| (p.age_ma, p.best_m)).collect();
+        doc.push(titled(
+            line_with_points(&plot, &best, TECTONIC, group("tectonic-best")),
+            "Tectonic subsidence (best)",
+        ));
     }
     if model.len() >= 2 {
-        tags.open(
-            &plot,
-            Group::new("model-curve")
-                .attr("stroke-dasharray", DASH)
-                .title("Fitted model"),
-        )?;
-        chart.draw_series(LineSeries::new(
-            model.iter().copied(),
-            MODEL.stroke_width(2),
-        ))?;
+        doc.push(titled(
+            group("model-curve")
+                .keyword("stroke-dasharray", DASH)
+                .child(polyline(plot.points(model.iter().copied())).stroke(MODEL, 2.0)),
+            "Fitted model",
+        ));
     }
-    tags.close(&plot)?;
 
     let mut entries = Vec::new();
     if !total.is_empty() {
@@ -157,7 +149,8 @@ fn draw(data: &SubsidenceChartData, body: &Area<'_>, tags: &mut Tags) -> DrawRes
     if model.len() >= 2 {
         entries.push(LegendEntry::new("Fitted model", Swatch::DashedLine(MODEL)));
     }
-    let below = draw_legend(&side, tags, "Series", &entries, 6)?;
+    let (series_legend, below) = legend(side, "Series", &entries, 6.0);
+    doc.push(series_legend);
     if !phases.is_empty() {
         let phase_entries: Vec<LegendEntry> = phases
             .iter()
@@ -169,9 +162,23 @@ fn draw(data: &SubsidenceChartData, body: &Area<'_>, tags: &mut Tags) -> DrawRes
                 )
             })
             .collect();
-        draw_legend(&side, tags, "Phases (Ma)", &phase_entries, below)?;
+        doc.push(legend(side, "Phases (Ma)", &phase_entries, below).0);
     }
-    Ok(())
+}
+
+/// A 2 px line through `points` with a 3 px ring at each, in `group`.
+pub(crate) fn line_with_points(
+    plot: &Plot,
+    points: &[(f64, f64)],
+    colour: super::svg::Colour,
+    group: Element,
+) -> Element {
+    let px = plot.points(points.iter().copied());
+    let mut g = group.child(polyline(px.clone()).stroke(colour, 2.0));
+    for p in px {
+        g.push(circle(p, 3.0).no_fill().stroke(colour, 2.0));
+    }
+    g
 }
 
 fn phase_legend_label(p: &PhaseBand) -> String {
@@ -183,70 +190,48 @@ fn phase_legend_label(p: &PhaseBand) -> String {
     )
 }
 
-/// Finite points sorted from old to young.
-pub(crate) fn old_to_young(points: &[(f64, f64)]) -> Vec<(f64, f64)> {
-    let mut out: Vec<(f64, f64)> = points
+/// Where the age axis lies in SVG pixels (group "age-axis"), so a page script can turn
+/// a click on the chart into an age: `data-age-a-ma` sits at `data-px-a`,
+/// `data-age-b-ma` at `data-px-b`.
+fn age_axis_record(plot: &Plot) -> Element {
+    let x = &plot.x;
+    group("age-axis")
+        .attr("data-age-a-ma", x.data.start)
+        .attr("data-px-a", x.px.0)
+        .attr("data-age-b-ma", x.data.end)
+        .attr("data-px-b", x.px.1)
+}
+
+/// Each phase as a full-height band (group "phase-band" with its name and ages),
+/// named at the top of the band when the name fits inside it.
+pub(crate) fn phase_bands(plot: &Plot, phases: &[&PhaseBand]) -> Vec<Element> {
+    let area = plot.area;
+    phases
         .iter()
-        .copied()
-        .filter(|p| p.0.is_finite() && p.1.is_finite())
-        .collect();
-    out.sort_by(|a, b| b.0.total_cmp(&a.0));
-    out
-}
-
-/// Shade each phase as a full-height band (group "phase-band" with its name and
-/// ages), named at the top of the band when the name fits inside it.
-/// Record where the age axis lies in SVG pixels, so a page script can turn a click on
-/// the chart into an age: `data-age-a-ma` sits at `data-px-a`, `data-age-b-ma` at `data-px-b`.
-fn mark_age_axis(chart: &Chart<'_, '_>, plot: &Area<'_>, tags: &mut Tags) -> DrawResult {
-    let x = chart.x_range();
-    let y = chart.y_range();
-    let (px_a, _) = chart.backend_coord(&(x.start, y.end));
-    let (px_b, _) = chart.backend_coord(&(x.end, y.end));
-    let group = Group::new("age-axis")
-        .attr("data-age-a-ma", x.start)
-        .attr("data-px-a", px_a)
-        .attr("data-age-b-ma", x.end)
-        .attr("data-px-b", px_b);
-    tags.open(plot, group)?;
-    tags.close(plot)
-}
-
-pub(crate) fn draw_phase_bands(
-    chart: &mut Chart<'_, '_>,
-    plot: &Area<'_>,
-    tags: &mut Tags,
-    phases: &[&PhaseBand],
-) -> DrawResult {
-    let y = chart.y_range();
-    let (y_bottom, y_top) = (y.start, y.end);
-    let origin = plot.get_base_pixel();
-    for (i, phase) in phases.iter().enumerate() {
-        let group = Group::new("phase-band")
-            .attr("data-name", &phase.name)
-            .attr("data-from-ma", phase.from_ma)
-            .attr("data-to-ma", phase.to_ma)
-            .title(&phase_legend_label(phase));
-        tags.open(plot, group)?;
-        let corners = [(phase.from_ma, y_top), (phase.to_ma, y_bottom)];
-        chart.draw_series(std::iter::once(Rectangle::new(
-            corners,
-            phase_colour(&phase.name, i).filled(),
-        )))?;
-        let (left, top) = chart.backend_coord(&(phase.from_ma, y_top));
-        let (right, _) = chart.backend_coord(&(phase.to_ma, y_top));
-        let width = f64::from((right - left).abs());
-        if text_width(&phase.name, TEXT_PX) + 8.0 <= width {
-            let centre = ((left + right) / 2 - origin.0, top + 6 - origin.1);
-            plot.draw(&Text::new(
-                phase.name.clone(),
-                centre,
-                anchored(font(TEXT_PX), HPos::Center, VPos::Top),
-            ))?;
-        }
-    }
-    tags.close(plot)?;
-    Ok(())
+        .enumerate()
+        .map(|(i, phase)| {
+            let (left, right) = (plot.x.at(phase.from_ma), plot.x.at(phase.to_ma));
+            let mut band = titled(
+                group("phase-band")
+                    .attr("data-name", &phase.name)
+                    .attr("data-from-ma", phase.from_ma)
+                    .attr("data-to-ma", phase.to_ma),
+                phase_legend_label(phase),
+            )
+            .child(
+                rect_between((left, area.top), (right, area.bottom()))
+                    .fill(phase_colour(&phase.name, i)),
+            );
+            if text_width(&phase.name, TEXT_PX) + 8.0 <= (right - left).abs() {
+                band.push(text(
+                    ((left + right) / 2.0, area.top + 6.0),
+                    phase.name.clone(),
+                    font(TEXT_PX).align(HAlign::Middle, VAlign::Top),
+                ));
+            }
+            band
+        })
+        .collect()
 }
 
 #[cfg(test)]
@@ -270,6 +255,16 @@ mod tests {
             assert_close(x, to_px(phase.from_ma), 1.5, "left edge of the band");
             assert_close(x + w, to_px(phase.to_ma), 1.5, "right edge of the band");
         }
+        // By hand (layout in frame.rs): the ages run 120-0 Ma over x = 80..688 px, so
+        // 100 Ma lies at 80 + 20/120 * 608 = 181.33 and 85 Ma at 80 + 35/120 * 608 = 257.33.
+        let syn = &bands[1];
+        let rect = first_child(syn, "rect");
+        assert_eq!(syn.attribute("data-name"), Some("syn-rift"));
+        assert_close(attr_f64(&rect, "x"), 181.33, 0.01, "syn-rift left edge");
+        assert_close(attr_f64(&rect, "width"), 76.0, 0.01, "syn-rift width");
+        // Full height of the plot: y = 54..422.
+        assert_close(attr_f64(&rect, "y"), 54.0, 0.01, "band top");
+        assert_close(attr_f64(&rect, "height"), 368.0, 0.01, "band height");
     }
 
     #[test]

@@ -1,7 +1,8 @@
 //! Test helpers: reading the charts' SVG back (with roxmltree) and invented sample data.
 //!
-//! Positions are checked against the tick labels plotters printed, not against the
-//! code's own coordinate mapping, so a wrong mapping shows up as a failure.
+//! Positions are read through the tick labels the chart printed (value and pixel side
+//! by side), so a series drawn off its axis shows up as a failure; the frame's own
+//! tests check the mapping itself against coordinates worked out by hand.
 
 use super::*;
 use roxmltree::{Document, Node};
@@ -395,8 +396,110 @@ fn every_chart_survives_odd_sizes_and_sparse_data() {
     }
 }
 
-/// Writes one of each chart to `<temp dir>/charts/` for a look in a browser:
-/// `cargo test --lib charts::test_support -- --ignored`.
+/// Names that try every way out of an attribute value or a text node, as a user could
+/// type them for a study, well, horizon, lithology or phase.
+const HOSTILE: [&str; 6] = [
+    "<script>alert('x')</script>",
+    "Smith & Sons \"deep\" well",
+    "]]> <![CDATA[ <g data-series=\"fake\"> ]]>",
+    "O'Neil <b>bold</b> &amp; &#60;",
+    "</title></g></svg><svg onload=\"x\">",
+    "tab\tand\nline break",
+];
+
+#[test]
+fn hostile_names_stay_text_in_every_chart() {
+    let size = ChartSize::default();
+    for (k, name) in HOSTILE.iter().enumerate() {
+        let other = HOSTILE[(k + 1) % HOSTILE.len()];
+        let mut subsidence = sample_subsidence();
+        subsidence.title = name.to_string();
+        subsidence.phases[1].name = name.to_string();
+        let mut burial = sample_burial();
+        burial.title = name.to_string();
+        burial.horizons[1].name = name.to_string();
+        burial.units[0].base_horizon = name.to_string();
+        burial.units[1].lithology = other.to_string();
+        let mut heat = sample_heat_flow();
+        heat.title = name.to_string();
+        heat.phases[0].name = name.to_string();
+        let mut map = sample_map();
+        map.title = name.to_string();
+        map.wells[0].name = name.to_string();
+        map.wells[3].name = other.to_string();
+        let mut rift = sample_rift_timing();
+        rift.title = name.to_string();
+        rift.wells[0].name = name.to_string();
+        rift.wells_without_fit = vec![other.to_string()];
+        let charts = [
+            ("subsidence", subsidence_chart(&subsidence, size)),
+            ("burial", burial_chart(&burial, size)),
+            ("heat flow", heat_flow_chart(&heat, size)),
+            ("map", well_map_chart(&map, size)),
+            ("rift timing", rift_timing_chart(&rift, size)),
+        ];
+        for (chart, svg) in charts {
+            let doc = parse(&svg);
+            let root = doc.root_element();
+            assert_eq!(root.tag_name().name(), "svg", "{chart}");
+            assert_eq!(
+                root.first_element_child().and_then(|t| t.text()),
+                Some(*name),
+                "{chart}: the document title reads back as given"
+            );
+            // No element other than the writer's own, and only one <svg>.
+            for node in doc.descendants().filter(|n| n.is_element()) {
+                let tag = node.tag_name().name();
+                assert!(
+                    [
+                        "svg", "title", "g", "rect", "line", "polyline", "polygon", "circle",
+                        "text"
+                    ]
+                    .contains(&tag),
+                    "{chart}: unexpected <{tag}> for {name:?}"
+                );
+                assert!(tag != "svg" || node == root, "{chart}: a second <svg>");
+                assert!(
+                    node.attributes().all(|a| !a.name().starts_with("on")),
+                    "{chart}: an event attribute"
+                );
+            }
+            // Every series is one of the charts' own; the hostile name is only ever text.
+            assert!(groups(&doc, "fake").is_empty(), "{chart}");
+            let named: Vec<&str> = doc
+                .descendants()
+                .filter_map(|n| n.attribute("data-name"))
+                .collect();
+            assert!(named.contains(name), "{chart}: {named:?}");
+            let titles: Vec<&str> = doc
+                .descendants()
+                .filter(|n| n.has_tag_name("title"))
+                .filter_map(|n| n.text())
+                .collect();
+            assert!(
+                titles.iter().filter(|t| t.contains(name)).count() >= 2,
+                "{chart}: the name in the document title and a series title: {titles:?}"
+            );
+        }
+        let burial_doc = burial_chart(&burial, size);
+        let doc = parse(&burial_doc);
+        assert!(
+            groups(&doc, "unit")
+                .iter()
+                .any(|u| u.attribute("data-lithology") == Some(other)
+                    && u.attribute("data-base-horizon").is_some()),
+            "the lithology reads back whole"
+        );
+        assert!(
+            groups(&doc, "unit")
+                .iter()
+                .any(|u| u.attribute("data-base-horizon") == Some(*name))
+        );
+    }
+}
+
+/// Writes one of each chart, as SVG and PNG, to `<temp dir>/charts/` for a look:
+/// `cargo test -p sagline-charts -- --ignored`.
 #[test]
 #[ignore = "writes files for visual review"]
 fn render_samples_for_review() {
@@ -414,6 +517,8 @@ fn render_samples_for_review() {
         ),
     ];
     for (name, svg) in charts {
+        let png = svg_to_png(&svg, 1.0).unwrap();
+        std::fs::write(dir.join(format!("{name}.png")), png).unwrap();
         std::fs::write(dir.join(format!("{name}.svg")), svg).unwrap();
     }
 }

@@ -2,16 +2,12 @@
 //! coloured by stretching factor on a colour-blind-safe sequential scale, at equal
 //! scale in x and y. Wells without a fit are drawn hollow.
 
-use super::ChartSize;
 use super::frame::{
-    Area, AxesSpec, DrawResult, LegendEntry, Swatch, TEXT_PX, anchored, bold_font, draw_axes,
-    draw_legend, draw_message, extent, font, padded, plot_and_side, plot_pixels, render,
-    text_width, wrap_text,
+    Area, AxesSpec, ChartSize, LegendEntry, Swatch, TEXT_PX, axes, bold_font, centred_message,
+    extent, font, legend, padded, plot_and_side, plot_area, render, text_width, wrap_text,
 };
 use super::style::{INK, INK_SOFT, NO_FIT, sequential_colour};
-use super::svg::{Group, Tags};
-use plotters::prelude::*;
-use plotters::style::text_anchor::{HPos, VPos};
+use super::svg::{Document, Element, HAlign, VAlign, circle, group, line, rect, text, titled};
 
 /// A well on the map.
 #[derive(Debug, Clone, PartialEq)]
@@ -34,15 +30,15 @@ pub struct WellMapData {
 /// Wells are named on the map up to this many; beyond it the names would crowd
 /// the map, and each marker keeps its name as a tooltip.
 pub const MAX_NAMED_WELLS: usize = 40;
-const MARKER_RADIUS: i32 = 7;
-const Y_LABEL_AREA: u32 = 84;
+const MARKER_RADIUS: f64 = 7.0;
+const Y_LABEL_AREA: f64 = 84.0;
 
 /// Draw the well map as an SVG document.
 pub fn well_map_chart(data: &WellMapData, size: ChartSize) -> String {
-    render(size, &data.title, |body, tags| draw(data, body, tags))
+    render(size, &data.title, |doc, body| draw(data, doc, body))
 }
 
-fn draw(data: &WellMapData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
+fn draw(data: &WellMapData, doc: &mut Document, body: Area) {
     let shown: Vec<&MapWell> = data
         .wells
         .iter()
@@ -50,19 +46,20 @@ fn draw(data: &WellMapData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
         .collect();
     let unplaced = data.wells.len() - shown.len();
     if shown.is_empty() {
-        let message = if unplaced == 0 {
+        let text = if unplaced == 0 {
             "No wells in this study yet.".to_string()
         } else {
             format!("No wells to show: {unplaced} without coordinates.")
         };
-        return draw_message(body, tags, &message);
+        doc.push(centred_message(body, &text));
+        return;
     }
     let beta = |w: &MapWell| w.beta.filter(|b| b.is_finite());
     let beta_range = extent(shown.iter().filter_map(|w| beta(w)));
 
-    let (plot, side) = plot_and_side(body);
-    let (w_px, h_px) = plot_pixels(&plot, Y_LABEL_AREA)?;
-    let (x_range, y_range) = equal_scale(&shown, f64::from(w_px.max(1)), f64::from(h_px.max(1)));
+    let (panel, side) = plot_and_side(body);
+    let area = plot_area(panel, Y_LABEL_AREA);
+    let (x_range, y_range) = equal_scale(&shown, area.width.max(1.0), area.height.max(1.0));
     let spec = AxesSpec {
         x: x_range,
         y: y_range,
@@ -71,81 +68,71 @@ fn draw(data: &WellMapData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
         y_label_area: Y_LABEL_AREA,
         y_ticks: true,
     };
-    let chart = draw_axes(&plot, tags, &spec)?;
-    let origin = plot.get_base_pixel();
-    let centres: Vec<(i32, i32)> = shown
-        .iter()
-        .map(|w| chart.backend_coord(&(w.x_m, w.y_m)))
-        .map(|(x, y)| (x - origin.0, y - origin.1))
-        .collect();
+    let (plot, axes_group) = axes(panel, &spec);
+    doc.push(axes_group);
+    let centres: Vec<(f64, f64)> = shown.iter().map(|w| plot.at((w.x_m, w.y_m))).collect();
 
     for (well, &centre) in shown.iter().zip(&centres) {
-        let group = Group::new("well").attr("data-name", &well.name);
-        match beta(well) {
+        let g = group("well").attr("data-name", &well.name);
+        doc.push(match beta(well) {
             Some(b) => {
                 let fill = sequential_colour(scale_position(b, beta_range));
-                let title = format!("{}: β = {b:.2}", well.name);
-                tags.open(
-                    &plot,
-                    group
-                        .attr("data-fit", "yes")
+                titled(
+                    g.keyword("data-fit", "yes")
                         .attr("data-beta", b)
-                        .title(&title),
-                )?;
-                plot.draw(&Circle::new(centre, MARKER_RADIUS as u32, fill.filled()))?;
-                plot.draw(&Circle::new(
-                    centre,
-                    MARKER_RADIUS as u32,
-                    INK.stroke_width(1),
-                ))?;
+                        .child(circle(centre, MARKER_RADIUS).fill(fill).stroke(INK, 1.0)),
+                    format!("{}: β = {b:.2}", well.name),
+                )
             }
-            None => {
-                tags.open(
-                    &plot,
-                    group
-                        .attr("data-fit", "no")
-                        .title(&format!("{}: no stretching fit", well.name)),
-                )?;
-                plot.draw(&Circle::new(
-                    centre,
-                    MARKER_RADIUS as u32 - 1,
-                    NO_FIT.stroke_width(2),
-                ))?;
-            }
-        }
+            None => titled(
+                g.keyword("data-fit", "no").child(
+                    circle(centre, MARKER_RADIUS - 1.0)
+                        .no_fill()
+                        .stroke(NO_FIT, 2.0),
+                ),
+                format!("{}: no stretching fit", well.name),
+            ),
+        });
     }
-    tags.close(&plot)?;
     if shown.len() <= MAX_NAMED_WELLS {
-        let (x_px, y_px) = chart.plotting_area().get_pixel_range();
-        let bounds = (
-            x_px.start - origin.0,
-            y_px.start - origin.1,
-            x_px.end - origin.0,
-            y_px.end - origin.1,
-        );
+        let a = plot.area;
+        let bounds = Rect {
+            left: a.left,
+            top: a.top,
+            right: a.right(),
+            bottom: a.bottom(),
+        };
         let names: Vec<&str> = shown.iter().map(|w| w.name.as_str()).collect();
-        tags.open(&plot, Group::new("well-names"))?;
+        let mut g = group("well-names");
         for (name, place) in names.iter().zip(place_names(&names, &centres, bounds)) {
             if let Some(place) = place {
-                plot.draw(&Text::new(
-                    name.to_string(),
+                g.push(text(
                     place.at,
-                    anchored(font(TEXT_PX), place.h, place.v),
-                ))?;
+                    name.to_string(),
+                    font(TEXT_PX).align(place.h, place.v),
+                ));
             }
         }
-        tags.close(&plot)?;
+        doc.push(g);
     }
 
     let below = match beta_range {
-        Some(range) => draw_colour_bar(&side, tags, range)?,
+        Some(range) => {
+            let (bar, below) = colour_bar(side, range);
+            doc.push(bar);
+            below
+        }
         None => {
-            side.draw(&Text::new(
-                "No stretching fits yet.",
-                (8, 12),
-                font(TEXT_PX).color(&INK_SOFT),
-            ))?;
-            40
+            doc.push(
+                group("note").child(text(
+                    (side.left + 8.0, side.top + 12.0),
+                    "No stretching fits yet.",
+                    font(TEXT_PX)
+                        .colour(INK_SOFT)
+                        .align(HAlign::Start, VAlign::Top),
+                )),
+            );
+            40.0
         }
     };
     let mut entries = Vec::new();
@@ -158,28 +145,29 @@ fn draw(data: &WellMapData, body: &Area<'_>, tags: &mut Tags) -> DrawResult {
     if shown.iter().any(|w| beta(w).is_none()) {
         entries.push(LegendEntry::new("No fit (hollow)", Swatch::Hollow(NO_FIT)));
     }
-    let below = draw_legend(&side, tags, "Wells", &entries, below)?;
+    let (legend_group, below) = legend(side, "Wells", &entries, below);
+    doc.push(legend_group);
     if unplaced > 0 {
         let note = if unplaced == 1 {
             "1 well without coordinates is not shown.".to_string()
         } else {
             format!("{unplaced} wells without coordinates are not shown.")
         };
-        let (side_w, _) = side.dim_in_pixel();
-        tags.open(&side, Group::new("note"))?;
-        for (k, line) in wrap_text(&note, f64::from(side_w) - 16.0, TEXT_PX, 4)
+        let mut g = group("note");
+        for (k, line) in wrap_text(&note, side.width - 16.0, TEXT_PX, 4)
             .into_iter()
             .enumerate()
         {
-            side.draw(&Text::new(
+            g.push(text(
+                (side.left + 8.0, side.top + below + 16.0 * k as f64),
                 line,
-                (8, below + 16 * k as i32),
-                font(TEXT_PX).color(&INK_SOFT),
-            ))?;
+                font(TEXT_PX)
+                    .colour(INK_SOFT)
+                    .align(HAlign::Start, VAlign::Top),
+            ));
         }
-        tags.close(&side)?;
+        doc.push(g);
     }
-    Ok(())
 }
 
 /// Position of `beta` on the colour scale; a single value (or one well) sits mid-scale.
@@ -211,14 +199,10 @@ fn equal_scale(
 }
 
 /// Place each name beside its marker: right, left, above or below, whichever first
-/// stays inside `bounds` (left, top, right, bottom) and clear of every marker and
-/// earlier name. Names with no free place are left out.
-fn place_names(
-    names: &[&str],
-    centres: &[(i32, i32)],
-    bounds: (i32, i32, i32, i32),
-) -> Vec<Option<NamePlace>> {
-    let r = MARKER_RADIUS + 1;
+/// stays inside `bounds` and clear of every marker and earlier name. Names with no free
+/// place are left out.
+fn place_names(names: &[&str], centres: &[(f64, f64)], bounds: Rect) -> Vec<Option<NamePlace>> {
+    let r = MARKER_RADIUS + 1.0;
     let markers: Vec<Rect> = centres
         .iter()
         .map(|&(x, y)| Rect {
@@ -231,60 +215,60 @@ fn place_names(
     let mut taken: Vec<Rect> = Vec::new();
     let mut out = Vec::with_capacity(names.len());
     for (name, &(x, y)) in names.iter().zip(centres) {
-        let w = text_width(name, TEXT_PX).ceil() as i32;
-        let h = TEXT_PX as i32 + 2;
-        let gap = MARKER_RADIUS + 4;
+        let w = text_width(name, TEXT_PX).ceil();
+        let h = TEXT_PX + 2.0;
+        let gap = MARKER_RADIUS + 4.0;
         let candidates = [
             (
                 (x + gap, y),
-                HPos::Left,
-                VPos::Center,
+                HAlign::Start,
+                VAlign::Middle,
                 Rect {
                     left: x + gap,
-                    top: y - h / 2,
+                    top: y - h / 2.0,
                     right: x + gap + w,
-                    bottom: y + h / 2,
+                    bottom: y + h / 2.0,
                 },
             ),
             (
                 (x - gap, y),
-                HPos::Right,
-                VPos::Center,
+                HAlign::End,
+                VAlign::Middle,
                 Rect {
                     left: x - gap - w,
-                    top: y - h / 2,
+                    top: y - h / 2.0,
                     right: x - gap,
-                    bottom: y + h / 2,
+                    bottom: y + h / 2.0,
                 },
             ),
             (
                 (x, y - gap),
-                HPos::Center,
-                VPos::Bottom,
+                HAlign::Middle,
+                VAlign::Baseline,
                 Rect {
-                    left: x - w / 2,
+                    left: x - w / 2.0,
                     top: y - gap - h,
-                    right: x + w / 2,
+                    right: x + w / 2.0,
                     bottom: y - gap,
                 },
             ),
             (
                 (x, y + gap),
-                HPos::Center,
-                VPos::Top,
+                HAlign::Middle,
+                VAlign::Top,
                 Rect {
-                    left: x - w / 2,
+                    left: x - w / 2.0,
                     top: y + gap,
-                    right: x + w / 2,
+                    right: x + w / 2.0,
                     bottom: y + gap + h,
                 },
             ),
         ];
         let free = candidates.into_iter().find(|(_, _, _, rect)| {
-            rect.left >= bounds.0
-                && rect.top >= bounds.1
-                && rect.right <= bounds.2
-                && rect.bottom <= bounds.3
+            rect.left >= bounds.left
+                && rect.top >= bounds.top
+                && rect.right <= bounds.right
+                && rect.bottom <= bounds.bottom
                 && !markers
                     .iter()
                     .chain(&taken)
@@ -301,18 +285,18 @@ fn place_names(
 
 /// Where a well's name goes: the text anchor point and alignment, and the box it takes.
 struct NamePlace {
-    at: (i32, i32),
-    h: HPos,
-    v: VPos,
+    at: (f64, f64),
+    h: HAlign,
+    v: VAlign,
     rect: Rect,
 }
 
 #[derive(Debug, Clone, Copy)]
 struct Rect {
-    left: i32,
-    top: i32,
-    right: i32,
-    bottom: i32,
+    left: f64,
+    top: f64,
+    right: f64,
+    bottom: f64,
 }
 
 impl Rect {
@@ -324,23 +308,27 @@ impl Rect {
     }
 }
 
-/// The colour bar (group "colour-bar"): the scale from the lowest β shown (bottom)
-/// to the highest (top), labelled at both ends and the middle. Returns the y below it.
-fn draw_colour_bar(side: &Area<'_>, tags: &mut Tags, (lo, hi): (f64, f64)) -> DrawResult<i32> {
-    const TOP: i32 = 34;
-    const HEIGHT: i32 = 160;
-    const STEPS: i32 = 64;
-    let (x0, x1) = (12, 34);
-    let group = Group::new("colour-bar")
-        .attr("data-min", lo)
-        .attr("data-max", hi)
-        .title("Stretching factor β");
-    tags.open(side, group)?;
-    side.draw(&Text::new(
+/// The colour bar (group "colour-bar") in the side panel: the scale from the lowest β
+/// shown (bottom) to the highest (top), labelled at both ends and the middle. Returns
+/// the group and the offset below it.
+fn colour_bar(side: Area, (lo, hi): (f64, f64)) -> (Element, f64) {
+    const TOP: f64 = 34.0;
+    const HEIGHT: f64 = 160.0;
+    const STEPS: u32 = 64;
+    let (x0, x1) = (side.left + 12.0, side.left + 34.0);
+    let top = side.top + TOP;
+    let mut g = titled(
+        group("colour-bar")
+            .attr("data-min", lo)
+            .attr("data-max", hi),
         "Stretching factor β",
-        (8, 6),
-        bold_font(TEXT_PX),
-    ))?;
+    );
+    g.push(text(
+        (side.left + 8.0, side.top + 6.0),
+        "Stretching factor β",
+        bold_font(TEXT_PX).align(HAlign::Start, VAlign::Top),
+    ));
+    let step_height = HEIGHT / f64::from(STEPS);
     for i in 0..STEPS {
         // Step i covers the scale from t = i / STEPS upward; t = 0 is at the bottom.
         let t = if hi > lo {
@@ -348,39 +336,29 @@ fn draw_colour_bar(side: &Area<'_>, tags: &mut Tags, (lo, hi): (f64, f64)) -> Dr
         } else {
             0.5
         };
-        let y_bottom = TOP + HEIGHT - i * HEIGHT / STEPS;
-        let y_top = TOP + HEIGHT - (i + 1) * HEIGHT / STEPS;
-        side.draw(&Rectangle::new(
-            [(x0, y_top), (x1, y_bottom)],
-            sequential_colour(t).filled(),
-        ))?;
+        let y_top = top + HEIGHT - f64::from(i + 1) * step_height;
+        // A hair taller than its step so that no seam shows between steps.
+        g.push(rect(x0, y_top, x1 - x0, step_height + 0.5).fill(sequential_colour(t)));
     }
-    side.draw(&Rectangle::new(
-        [(x0, TOP), (x1, TOP + HEIGHT)],
-        INK.stroke_width(1),
-    ))?;
+    g.push(rect(x0, top, x1 - x0, HEIGHT).no_fill().stroke(INK, 1.0));
     let labels = if hi > lo {
         vec![
-            (hi, TOP),
-            ((lo + hi) / 2.0, TOP + HEIGHT / 2),
-            (lo, TOP + HEIGHT),
+            (hi, top),
+            ((lo + hi) / 2.0, top + HEIGHT / 2.0),
+            (lo, top + HEIGHT),
         ]
     } else {
-        vec![(hi, TOP + HEIGHT / 2)]
+        vec![(hi, top + HEIGHT / 2.0)]
     };
     for (value, y) in labels {
-        side.draw(&PathElement::new(
-            vec![(x1, y), (x1 + 5, y)],
-            INK.stroke_width(1),
-        ))?;
-        side.draw(&Text::new(
+        g.push(line((x1, y), (x1 + 5.0, y)).stroke(INK, 1.0));
+        g.push(text(
+            (x1 + 9.0, y),
             format!("{value:.2}"),
-            (x1 + 9, y),
-            anchored(font(TEXT_PX), HPos::Left, VPos::Center),
-        ))?;
+            font(TEXT_PX).align(HAlign::Start, VAlign::Middle),
+        ));
     }
-    tags.close(side)?;
-    Ok(TOP + HEIGHT + 18)
+    (g, TOP + HEIGHT + 18.0)
 }
 
 #[cfg(test)]
@@ -426,8 +404,9 @@ mod tests {
                 .unwrap()
                 .to_string()
         };
-        assert_eq!(fill_of(lo), crate::sequential_colour_hex(0.0));
-        assert_eq!(fill_of(hi), crate::sequential_colour_hex(1.0));
+        // The ends of the viridis table in style.rs: #440154 (low) and #FDE725 (high).
+        assert_eq!(fill_of(lo), "#440154");
+        assert_eq!(fill_of(hi), "#FDE725");
     }
 
     #[test]
@@ -493,10 +472,18 @@ mod tests {
             .collect();
         assert!(names.len() >= 3, "{names:?}");
         // Crowded wells: every placed name keeps clear of the others.
-        let centres: Vec<(i32, i32)> = (0..12).map(|i| (300 + 4 * i, 200)).collect();
+        let centres: Vec<(f64, f64)> = (0..12)
+            .map(|i| (300.0 + 4.0 * f64::from(i), 200.0))
+            .collect();
         let names: Vec<String> = (0..12).map(|i| format!("W-{i}")).collect();
         let refs: Vec<&str> = names.iter().map(String::as_str).collect();
-        let placed = place_names(&refs, &centres, (0, 0, 600, 400));
+        let bounds = Rect {
+            left: 0.0,
+            top: 0.0,
+            right: 600.0,
+            bottom: 400.0,
+        };
+        let placed = place_names(&refs, &centres, bounds);
         assert!(placed.iter().any(Option::is_none), "some names give way");
         let boxes: Vec<Rect> = placed.iter().flatten().map(|p| p.rect).collect();
         assert!(boxes.len() >= 2);
