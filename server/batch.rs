@@ -504,3 +504,83 @@ fn progress_bar(wells: usize) -> Option<indicatif::ProgressBar> {
 
 /// Above this many wells the JSON is written compact rather than indented.
 pub const INDENTED_JSON_MAX_WELLS: usize = 100;
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use sagline_science::{Erosion, LithologyMix, Surface, WaterDepth};
+
+    fn surface(horizon: &str, depth_m: f64, age_ma: f64, lithology: bool) -> Surface {
+        Surface {
+            horizon: horizon.into(),
+            depth_m,
+            age_ma,
+            lithology_below: lithology.then(|| LithologyMix::single("shale")),
+            water_depth: WaterDepth::exact(if age_ma == 0.0 { depth_m } else { 20.0 }),
+            erosion: None,
+        }
+    }
+
+    /// A well the file rules would refuse (1.7e308 m eroded), built directly: its
+    /// restoration overflows, so its analysis fails.
+    fn vast_well() -> WellColumn {
+        let mut unconformity = surface("Vast unconformity", 1000.0, 20.0, true);
+        unconformity.erosion = Some(Erosion {
+            eroded_m: 1.7e308,
+            eroded_at_ma: 15.0,
+        });
+        WellColumn::new(
+            "Vast-1",
+            vec![
+                surface("Sea floor", 0.0, 0.0, true),
+                surface("Top Vast", 1000.0, 10.0, true),
+                unconformity,
+                surface("Base Vast", 1.7e308, 30.0, false),
+            ],
+        )
+        .expect("a column the science types accept")
+    }
+
+    fn sound_well(name: &str) -> WellColumn {
+        WellColumn::new(
+            name,
+            vec![
+                surface("Sea floor", 150.0, 0.0, true),
+                surface("Top Marl", 900.0, 30.0, true),
+                surface("Base Marl", 1600.0, 70.0, false),
+            ],
+        )
+        .expect("a sound column")
+    }
+
+    #[test]
+    fn a_well_that_cannot_be_analysed_is_reported_and_the_others_are_kept() {
+        let wells = [sound_well("Orrin-1"), vast_well(), sound_well("Orrin-2")];
+        let inputs = StudyInputs {
+            params: ModelParameters::default(),
+            catalogue: Catalogue::published_defaults(),
+            sea_level: SeaLevelCurve::default(),
+        };
+        for backstrip_only in [false, true] {
+            let run = Run {
+                wells: &wells,
+                inputs: &inputs,
+                timing: &|_| None,
+                backstrip_only,
+            };
+            let outs = run.well_outs(&wells, &|| {});
+            let names: Vec<&str> = outs.iter().map(|w| w.well.as_str()).collect();
+            assert_eq!(names, ["Orrin-1", "Vast-1", "Orrin-2"]);
+            let failed = &outs[1];
+            assert!(
+                failed.warnings[0].starts_with("not analysed: "),
+                "{:?}",
+                failed.warnings
+            );
+            assert!(failed.history.is_empty() && failed.stretching.is_none());
+            for good in [&outs[0], &outs[2]] {
+                assert_eq!(good.history.len(), 3, "{} is analysed in full", good.well);
+            }
+        }
+    }
+}

@@ -922,10 +922,10 @@ fn an_out_file_in_a_missing_directory_fails_before_any_analysis() {
     assert!(!target.exists());
 }
 
-/// Orrin-1, and Vast-1 whose unconformity removed 1.7e308 m of section: a column the
-/// input rules accept (every number finite, the erosion where the rules want it) but
-/// that no restoration can hold, since the restored column is deeper than any `f64`.
-const ONE_WELL_FAILS: &str = "\
+/// Orrin-1, and Vast-1 whose unconformity removed 1.7e308 m of section: every number
+/// finite, the erosion where the rules want it, but a column no restoration can hold.
+/// The input rules refuse it at the edge (physical bounds), so nothing is analysed.
+const VAST_WELL: &str = "\
 well,horizon,depth_m,age_ma,lithology,water_depth_m,eroded_m,eroded_at_ma
 Orrin-1,Sea floor,150,0,shale,150,,
 Orrin-1,Top Marl,900,30,sandstone,60,,
@@ -934,52 +934,23 @@ Vast-1,Sea floor,0,0,shale,0,,
 Vast-1,Top Vast,1000,10,shale,0,,
 Vast-1,Vast unconformity,1000,20,shale,0,1.7e308,15
 Vast-1,Base Vast,1.7e308,30,,0,,
-Orrin-2,Sea floor,150,0,shale,150,,
-Orrin-2,Top Marl,900,30,sandstone,60,,
-Orrin-2,Base Marl,1600,70,,20,,
 ";
 
 #[test]
-fn a_well_that_cannot_be_analysed_is_reported_and_the_others_are_written() {
+fn a_column_beyond_physical_bounds_is_refused_before_anything_is_analysed() {
     let ws = Workspace::new();
-    let tops = ws.file("vast_tops.csv", ONE_WELL_FAILS);
-    for extra in [&[][..], &["--backstrip-only"][..]] {
+    let tops = ws.file("vast_tops.csv", VAST_WELL);
+    for extra in [&[][..], &["--backstrip-only"][..], &["--format", "csv"][..]] {
         let mut args = vec![tops.as_str()];
         args.extend_from_slice(extra);
-        let report = success_json(&ws.analyze(&args));
-        let names: Vec<&str> = report["wells"]
-            .as_array()
-            .expect("wells")
-            .iter()
-            .map(|w| w["well"].as_str().expect("a name"))
-            .collect();
-        assert_eq!(names, ["Orrin-1", "Vast-1", "Orrin-2"], "{extra:?}");
-        let failed = well(&report, "Vast-1");
-        let warning = failed["warnings"][0].as_str().unwrap_or_default();
-        assert!(warning.starts_with("not analysed: "), "{extra:?}: {failed}");
-        assert_eq!(failed["history"].as_array().map(Vec::len), Some(0));
-        assert!(failed["stretching"].is_null());
-        for name in ["Orrin-1", "Orrin-2"] {
-            assert_eq!(
-                well(&report, name)["history"].as_array().map(Vec::len),
-                Some(3),
-                "{extra:?}: {name} is analysed in full"
-            );
-        }
+        assert_refused(
+            &ws.analyze(&args),
+            &[
+                "vast_tops.csv line 7, column eroded_m",
+                "out of range for an eroded thickness",
+                "vast_tops.csv line 8, column depth_m",
+                "out of range for a depth",
+            ],
+        );
     }
-    // In CSV the failed well has no rows; the others keep theirs.
-    let out = ws.analyze(&[&tops, "--format", "csv"]);
-    assert!(out.status.success(), "stderr: {}", stderr(&out));
-    let text = String::from_utf8(out.stdout).expect("UTF-8");
-    let wells: Vec<&str> = text
-        .lines()
-        .skip(1)
-        .map(|l| l.split(',').next().unwrap_or_default())
-        .collect();
-    assert_eq!(
-        wells,
-        [
-            "Orrin-1", "Orrin-1", "Orrin-1", "Orrin-2", "Orrin-2", "Orrin-2"
-        ]
-    );
 }
