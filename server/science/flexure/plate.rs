@@ -190,10 +190,18 @@ mod tests {
     /// forms with nu = 0.25, g = 9.81): (E GPa, Te km, D N m, alpha km for drho 2300,
     /// 2 pi alpha km, w0 m for V0 = 1e12 N/m, alpha km for drho 2330, alpha km for drho 900).
     const TABLE: [(f64, f64, f64, f64, f64, f64, f64, f64); 4] = [
-        (70.0, 10.0, 6.2222e21, 32.408, 203.63, 683.79, 32.303, 40.975),
-        (70.0, 25.0, 9.7222e22, 64.433, 404.84, 343.93, 64.224, 81.466),
-        (100.0, 10.0, 8.8889e21, 35.431, 222.62, 625.45, 35.316, 44.797),
-        (100.0, 25.0, 1.3889e23, 70.442, 442.60, 314.59, 70.214, 89.064),
+        (
+            70.0, 10.0, 6.2222e21, 32.408, 203.63, 683.79, 32.303, 40.975,
+        ),
+        (
+            70.0, 25.0, 9.7222e22, 64.433, 404.84, 343.93, 64.224, 81.466,
+        ),
+        (
+            100.0, 10.0, 8.8889e21, 35.431, 222.62, 625.45, 35.316, 44.797,
+        ),
+        (
+            100.0, 25.0, 1.3889e23, 70.442, 442.60, 314.59, 70.214, 89.064,
+        ),
     ];
 
     #[test]
@@ -298,9 +306,15 @@ mod tests {
         // local volume (buoyancy balances the load).
         let alpha = 50_000.0;
         let wide = continuous_strip_load_deflection(0.0, 20.0 * alpha, 1000.0, alpha);
-        assert!((wide - 1000.0).abs() < 1e-3, "centre of a wide strip: {wide}");
+        assert!(
+            (wide - 1000.0).abs() < 1e-3,
+            "centre of a wide strip: {wide}"
+        );
         let narrow = continuous_strip_load_deflection(0.0, 0.5 * alpha, 1000.0, alpha);
-        assert!(narrow < 700.0, "a narrow strip is carried regionally: {narrow}");
+        assert!(
+            narrow < 700.0,
+            "a narrow strip is carried regionally: {narrow}"
+        );
         let (a, h) = (0.5 * alpha, 100.0);
         let integral: f64 = (-40_000..40_000)
             .map(|i| continuous_strip_load_deflection((i as f64 + 0.5) * h, a, 1000.0, alpha) * h)

@@ -138,11 +138,7 @@ impl Piece {
     }
 
     /// Node loads: the cell means of `mean_load`, plus the line loads on this piece.
-    fn node_loads(
-        &self,
-        mean_load: &dyn Fn(f64, f64) -> f64,
-        lines: &[LineLoad],
-    ) -> Vec<f64> {
+    fn node_loads(&self, mean_load: &dyn Fn(f64, f64) -> f64, lines: &[LineLoad]) -> Vec<f64> {
         let h = self.step_m;
         let (lo, hi) = self.extent();
         let mut loads: Vec<f64> = (0..self.nodes)
@@ -291,13 +287,13 @@ impl PlateSolver {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::GRAVITY_M_S2;
     use crate::flexure::plate::{
         ElasticPlate, broken_line_load_deflection, broken_line_load_peak_m,
         continuous_line_load_deflection, continuous_line_load_peak_m,
         continuous_strip_load_deflection,
     };
     use crate::tolerance::assert_relative;
-    use crate::GRAVITY_M_S2;
     use std::f64::consts::PI;
 
     const DRHO: f64 = 2300.0;
@@ -313,7 +309,12 @@ mod tests {
     }
 
     /// Largest misfit of a profile to a closed form, relative to the closed form's peak.
-    fn worst(profile: &DeflectionProfile, xs: &[f64], exact: impl Fn(f64) -> f64, peak: f64) -> f64 {
+    fn worst(
+        profile: &DeflectionProfile,
+        xs: &[f64],
+        exact: impl Fn(f64) -> f64,
+        peak: f64,
+    ) -> f64 {
         xs.iter()
             .map(|&x| (profile.deflection_at(x) - exact(x)).abs() / peak.abs())
             .fold(0.0, f64::max)
@@ -346,7 +347,10 @@ mod tests {
             let bulge = profile.deflection_at(line.position_m + PI * alpha);
             assert_relative(bulge, -w0 * (-PI).exp(), 1e-2, "forebulge height");
             assert!(
-                profile.deflection_at(line.position_m + 0.75 * PI * alpha).abs() < 1e-3 * w0,
+                profile
+                    .deflection_at(line.position_m + 0.75 * PI * alpha)
+                    .abs()
+                    < 1e-3 * w0,
                 "zero crossing at 3 pi alpha / 4"
             );
         }
@@ -379,12 +383,15 @@ mod tests {
         }
         let half_width = 20.0 * alpha;
         let centre = continuous_strip_load_deflection(0.0, half_width, 800.0, alpha);
-        assert!((centre - 800.0).abs() < 1e-3, "local compensation: {centre}");
+        assert!(
+            (centre - 800.0).abs() < 1e-3,
+            "local compensation: {centre}"
+        );
     }
 
     #[test]
     fn the_finite_difference_broken_plate_matches_the_end_load_solution_within_a_tenth_of_a_percent()
-    {
+     {
         // Turcotte & Schubert eq. 3-135; SCIENCE.md 11: w = w0 exp(-x/alpha) cos(x/alpha),
         // w0 = V0 alpha^3/(4D), for a line load V0 on the break, shared by the two ends.
         for te_km in [10.0, 25.0] {
@@ -392,8 +399,7 @@ mod tests {
             let v0 = 1e12;
             let w0 = broken_line_load_peak_m(v0, d, alpha);
             let break_m = 50e3;
-            let solver =
-                PlateSolver::new(PlateGeometry::Broken { break_m }, alpha, 0.0, 600e3);
+            let solver = PlateSolver::new(PlateGeometry::Broken { break_m }, alpha, 0.0, 600e3);
             let line = LineLoad {
                 position_m: break_m,
                 local_area_m2: v0 / (DRHO * GRAVITY_M_S2),
@@ -427,8 +433,8 @@ mod tests {
             let f = |x: f64| (1000.0 * (1.0 - ((x - 100e3) / 100e3).abs())).max(0.0);
             (f(a) + 4.0 * f(0.5 * (a + b)) + f(b)) / 6.0
         };
-        let continuous = PlateSolver::new(PlateGeometry::Continuous, alpha, 0.0, 200e3)
-            .solve(&load, &[]);
+        let continuous =
+            PlateSolver::new(PlateGeometry::Continuous, alpha, 0.0, 200e3).solve(&load, &[]);
         let broken = PlateSolver::new(
             PlateGeometry::Broken {
                 break_m: 200e3 + 20.0 * alpha,
@@ -447,8 +453,12 @@ mod tests {
     #[test]
     fn with_no_strength_the_plate_takes_the_load_locally() {
         let load = |a: f64, b: f64| 0.5 * (a + b) / 1000.0;
-        let profile = PlateSolver::new(PlateGeometry::Continuous, 0.0, 0.0, 100e3).solve(&load, &[]);
-        assert_eq!(profile.deflection_at(40e3), profile.local_deflection_at(40e3));
+        let profile =
+            PlateSolver::new(PlateGeometry::Continuous, 0.0, 0.0, 100e3).solve(&load, &[]);
+        assert_eq!(
+            profile.deflection_at(40e3),
+            profile.local_deflection_at(40e3)
+        );
         assert!((profile.deflection_at(40e3) - 40.0).abs() < 1e-9);
     }
 }
