@@ -16,6 +16,7 @@ pub mod foreland;
 pub mod loading_curve;
 pub mod plate;
 pub mod section;
+mod simplex;
 pub mod solver;
 pub mod spectral;
 
