@@ -84,8 +84,8 @@ impl FreeEndPlate {
                 x[i] -= self.lower2[i - 2] * x[i - 2];
             }
         }
-        for i in 0..n {
-            x[i] /= self.pivot[i];
+        for (xi, d) in x.iter_mut().zip(&self.pivot) {
+            *xi /= d;
         }
         for i in (0..n).rev() {
             if i + 1 < n {

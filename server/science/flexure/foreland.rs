@@ -18,8 +18,8 @@
 //! simplex. Both facings are tried unless one is given.
 
 use super::plate::ElasticPlate;
-use super::solver::{DeflectionProfile, PlateGeometry, PlateSolver};
 use super::simplex::nelder_mead;
+use super::solver::{DeflectionProfile, PlateGeometry, PlateSolver};
 use crate::{GRAVITY_M_S2, ScienceError};
 use serde::{Deserialize, Serialize};
 
@@ -121,7 +121,11 @@ fn prepare(
 }
 
 /// Solve a prepared plate for the model's load.
-fn deflect(solver: &PlateSolver, load: &ForelandLoad, density_contrast_kg_m3: f64) -> DeflectionProfile {
+fn deflect(
+    solver: &PlateSolver,
+    load: &ForelandLoad,
+    density_contrast_kg_m3: f64,
+) -> DeflectionProfile {
     let area = load.force_n_per_m / (density_contrast_kg_m3 * GRAVITY_M_S2);
     match load.shape {
         LoadShape::Line => solver.solve(
@@ -138,7 +142,11 @@ fn deflect(solver: &PlateSolver, load: &ForelandLoad, density_contrast_kg_m3: f6
             solver.solve(
                 &|a: f64, b: f64| {
                     let overlap = (b.min(b0) - a.max(a0)).max(0.0);
-                    if b > a { height * overlap / (b - a) } else { 0.0 }
+                    if b > a {
+                        height * overlap / (b - a)
+                    } else {
+                        0.0
+                    }
                 },
                 &[],
             )
@@ -374,8 +382,14 @@ pub fn fit_foreland(
             "a block load needs a positive width, not {width_m} m"
         )));
     }
-    let first = points.iter().map(|p| p.distance_m).fold(f64::INFINITY, f64::min);
-    let last = points.iter().map(|p| p.distance_m).fold(f64::NEG_INFINITY, f64::max);
+    let first = points
+        .iter()
+        .map(|p| p.distance_m)
+        .fold(f64::INFINITY, f64::min);
+    let last = points
+        .iter()
+        .map(|p| p.distance_m)
+        .fold(f64::NEG_INFINITY, f64::max);
     let span = (last - first).max(10e3);
     let (front_lo, front_hi) = settings
         .front_range_m
@@ -459,15 +473,25 @@ pub fn fit_foreland(
     let linear = solve_linear(points, &u, settings.free_offset);
     let force = linear.force_scale * UNIT_FORCE_N_PER_M;
     let model = problem.model(te, front, facing, force);
-    let alpha = plate.with_thickness(te).flexural_parameter_m(density_contrast_kg_m3);
+    let alpha = plate
+        .with_thickness(te)
+        .flexural_parameter_m(density_contrast_kg_m3);
 
     // The fitted profile, over the wells and the load.
-    let deflection = foreland_deflection(&model, plate, density_contrast_kg_m3, problem.lo, problem.hi);
+    let deflection = foreland_deflection(
+        &model,
+        plate,
+        density_contrast_kg_m3,
+        problem.lo,
+        problem.hi,
+    );
     let edge = hinterland_edge(&model.load);
     let (p_lo, p_hi) = (first.min(edge).min(front), last.max(edge).max(front));
     let margin = 0.05 * (p_hi - p_lo).max(1.0);
     let xs: Vec<f64> = (0..PROFILE_POINTS)
-        .map(|i| p_lo - margin + (p_hi - p_lo + 2.0 * margin) * i as f64 / (PROFILE_POINTS - 1) as f64)
+        .map(|i| {
+            p_lo - margin + (p_hi - p_lo + 2.0 * margin) * i as f64 / (PROFILE_POINTS - 1) as f64
+        })
         .collect();
     let w: Vec<f64> = xs.iter().map(|&x| deflection.deflection_at(x)).collect();
     let residuals: Vec<(f64, f64)> = points
@@ -529,7 +553,11 @@ pub fn fit_foreland(
 
 /// The forebulge on the foreland side of `front`: the greatest uplift, and the zero
 /// crossing before it. `None` when the plate is nowhere lifted.
-pub fn find_forebulge(profile: &DeflectionProfile, front_m: f64, facing: Facing) -> Option<Forebulge> {
+pub fn find_forebulge(
+    profile: &DeflectionProfile,
+    front_m: f64,
+    facing: Facing,
+) -> Option<Forebulge> {
     let s = facing.sign();
     let mut nodes: Vec<(f64, f64)> = profile
         .distance_m

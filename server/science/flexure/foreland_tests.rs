@@ -36,7 +36,11 @@ fn superposed_block(x: f64, te_m: f64, front: f64, width: f64, force: f64) -> f6
     (0..slices)
         .map(|i| {
             let xi = front - width * (i as f64 + 0.5) / slices as f64;
-            continuous_line_load_deflection(x - xi, continuous_line_load_peak_m(slice, d, alpha), alpha)
+            continuous_line_load_deflection(
+                x - xi,
+                continuous_line_load_peak_m(slice, d, alpha),
+                alpha,
+            )
         })
         .sum()
 }
@@ -53,7 +57,9 @@ fn the_fit_recovers_te_and_the_load_of_a_superposed_block_load_section() {
             let x = i as f64 * spacing;
             SubsidencePoint {
                 distance_m: x,
-                subsidence_m: 150.0 + superposed_block(x, te, front, width, force) + noise.next(10.0),
+                subsidence_m: 150.0
+                    + superposed_block(x, te, front, width, force)
+                    + noise.next(10.0),
                 sigma_m: 10.0,
             }
         })
@@ -77,18 +83,32 @@ fn the_fit_recovers_te_and_the_load_of_a_superposed_block_load_section() {
         got.load.front_m / 1e3,
         front / 1e3
     );
-    assert!((got.load.force_n_per_m - force).abs() < 0.15 * force, "{}", got.load.force_n_per_m);
-    assert!(fit.misfit_to_uncertainty < 1.5, "{}", fit.misfit_to_uncertainty);
+    assert!(
+        (got.load.force_n_per_m - force).abs() < 0.15 * force,
+        "{}",
+        got.load.force_n_per_m
+    );
+    assert!(
+        fit.misfit_to_uncertainty < 1.5,
+        "{}",
+        fit.misfit_to_uncertainty
+    );
     assert!(fit.warnings.is_empty(), "{:?}", fit.warnings);
     // The forebulge stands about pi alpha beyond the load's centre and lifts the plate
     // by about exp(-pi) of the peak (TS eq. 3-131; a block 30 km wide moves both a little).
     let bulge = fit.forebulge.unwrap();
     let alpha = plate(te).flexural_parameter_m(DRHO);
     let centre = front - 0.5 * width;
-    assert!((bulge.crest_m - (centre + PI * alpha)).abs() < 0.15 * PI * alpha, "{bulge:?}");
+    assert!(
+        (bulge.crest_m - (centre + PI * alpha)).abs() < 0.15 * PI * alpha,
+        "{bulge:?}"
+    );
     assert!((bulge.basin_edge_m - (centre + 0.75 * PI * alpha)).abs() < 0.15 * PI * alpha);
     let peak = superposed_block(front - 0.5 * width, te, front, width, force);
-    assert!(bulge.height_m > 0.02 * peak && bulge.height_m < 0.06 * peak, "{bulge:?}");
+    assert!(
+        bulge.height_m > 0.02 * peak && bulge.height_m < 0.06 * peak,
+        "{bulge:?}"
+    );
 }
 
 #[test]
@@ -119,13 +139,27 @@ fn the_fit_recovers_a_line_load_on_a_broken_plate_facing_the_other_way() {
     };
     let fit = fit_foreland(&points, &plate(0.0), DRHO, &settings).unwrap();
     assert_eq!(fit.model.load.facing, Facing::Decreasing);
-    assert!((fit.model.elastic_thickness_m - te).abs() < 0.1 * te, "{:?}", fit.model);
-    assert!((fit.model.load.front_m - front).abs() < spacing, "{:?}", fit.model);
+    assert!(
+        (fit.model.elastic_thickness_m - te).abs() < 0.1 * te,
+        "{:?}",
+        fit.model
+    );
+    assert!(
+        (fit.model.load.front_m - front).abs() < spacing,
+        "{:?}",
+        fit.model
+    );
     assert_eq!(fit.parameters, 3);
     // TS: the broken plate's forebulge crest at 3 pi alpha / 4, zero at pi alpha / 2.
     let bulge = fit.forebulge.unwrap();
-    assert!((bulge.crest_m - (front - 0.75 * PI * alpha)).abs() < 0.1 * alpha, "{bulge:?}");
-    assert!((bulge.basin_edge_m - (front - 0.5 * PI * alpha)).abs() < 0.1 * alpha, "{bulge:?}");
+    assert!(
+        (bulge.crest_m - (front - 0.75 * PI * alpha)).abs() < 0.1 * alpha,
+        "{bulge:?}"
+    );
+    assert!(
+        (bulge.basin_edge_m - (front - 0.5 * PI * alpha)).abs() < 0.1 * alpha,
+        "{bulge:?}"
+    );
 }
 
 #[test]
@@ -166,7 +200,10 @@ fn the_migration_of_the_load_and_its_forebulge_is_measured_over_several_ages() {
     let front = history.front_migration_m_per_myr.unwrap();
     assert!((front - 2e3).abs() < 0.2e3, "front migrates {front} m/Myr");
     let bulge = history.forebulge_migration_m_per_myr.unwrap();
-    assert!((bulge - 2e3).abs() < 0.3e3, "forebulge migrates {bulge} m/Myr");
+    assert!(
+        (bulge - 2e3).abs() < 0.3e3,
+        "forebulge migrates {bulge} m/Myr"
+    );
 }
 
 #[test]

@@ -9,10 +9,12 @@
 //! - [`backstrip`]: flexural backstripping along a section, and the Te sweep.
 //! - [`foreland`]: a forward model of a foreland load and its fit to a section.
 //! - [`loading_curve`]: the subsidence curve of one well as a load approaches it.
+//! - [`forward`]: synthetic wells whose Airy tectonic subsidence follows a given curve.
 
 pub mod backstrip;
 pub mod finite_difference;
 pub mod foreland;
+pub mod forward;
 pub mod loading_curve;
 pub mod plate;
 pub mod section;

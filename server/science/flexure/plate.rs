@@ -189,7 +189,8 @@ mod tests {
     /// docs/science-flexure.md 1 (the check table of SCIENCE.md 11, computed from the closed
     /// forms with nu = 0.25, g = 9.81): (E GPa, Te km, D N m, alpha km for drho 2300,
     /// 2 pi alpha km, w0 m for V0 = 1e12 N/m, alpha km for drho 2330, alpha km for drho 900).
-    const TABLE: [(f64, f64, f64, f64, f64, f64, f64, f64); 4] = [
+    type Row = (f64, f64, f64, f64, f64, f64, f64, f64);
+    const TABLE: [Row; 4] = [
         (
             70.0, 10.0, 6.2222e21, 32.408, 203.63, 683.79, 32.303, 40.975,
         ),

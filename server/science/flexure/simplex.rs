@@ -47,7 +47,11 @@ pub(crate) fn nelder_mead<const N: usize>(
             let expanded = along(-2.0);
             let fe = f(&expanded);
             evaluations += 1;
-            simplex[N] = if fe < fr { (expanded, fe) } else { (reflected, fr) };
+            simplex[N] = if fe < fr {
+                (expanded, fe)
+            } else {
+                (reflected, fr)
+            };
         } else if fr < simplex[N - 1].1 {
             simplex[N] = (reflected, fr);
         } else {
@@ -87,6 +91,9 @@ mod tests {
             5000,
         );
         assert!(v < 1e-8, "{v}");
-        assert!((p[0] - 1.0).abs() < 1e-3 && (p[1] - 1.0).abs() < 1e-3, "{p:?}");
+        assert!(
+            (p[0] - 1.0).abs() < 1e-3 && (p[1] - 1.0).abs() < 1e-3,
+            "{p:?}"
+        );
     }
 }
