@@ -82,7 +82,7 @@ pub fn run(args: &AnalyzeArgs) -> ExitCode {
     }
 }
 
-fn read(path: &Path) -> Result<Vec<u8>, BatchError> {
+pub(crate) fn read(path: &Path) -> Result<Vec<u8>, BatchError> {
     let meta = std::fs::metadata(path)
         .map_err(|e| BatchError(format!("cannot read {}: {e}", path.display())))?;
     if meta.len() > input::MAX_FILE_BYTES as u64 {
@@ -96,7 +96,7 @@ fn read(path: &Path) -> Result<Vec<u8>, BatchError> {
     std::fs::read(path).map_err(|e| BatchError(format!("cannot read {}: {e}", path.display())))
 }
 
-fn file_name(path: &Path) -> String {
+pub(crate) fn file_name(path: &Path) -> String {
     path.file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_else(|| path.display().to_string())

@@ -1,4 +1,4 @@
-//! The command line: `sagline [serve]`, `sagline analyze` and `sagline user add`.
+//! The command line: `sagline [serve]`, `sagline analyze`, `sagline section` and `sagline user add`.
 
 use crate::auth::Role;
 use crate::services::accounts;
@@ -25,6 +25,8 @@ pub enum Command {
     Serve(ServeArgs),
     /// Analyse a tops file and print the results as JSON or CSV.
     Analyze(crate::batch::AnalyzeArgs),
+    /// Flexurally backstrip the wells along a section line (JSON or CSV).
+    Section(crate::section_batch::SectionArgs),
     /// Manage the accounts of a database.
     User(UserArgs),
     /// Rebuild the demo study's CSV files from its basin description (seeded, repeatable).
@@ -101,6 +103,7 @@ pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Some(Command::Analyze(args)) => crate::batch::run(&args),
+        Some(Command::Section(args)) => crate::section_batch::run(&args),
         Some(Command::BuildDemo(a)) => crate::demo_build::run(&a.spec, &a.out),
         Some(Command::Serve(args)) => serve_blocking(args),
         Some(Command::User(UserArgs {

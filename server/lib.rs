@@ -14,6 +14,8 @@ pub mod cli;
 pub mod demo;
 /// Builds the demo study's CSV files from the invented basin in `demo-db/basin.json`.
 pub mod demo_build;
+/// The `sagline section` batch command: flexural backstripping along a section line.
+pub mod section_batch;
 /// Starting and stopping the web server.
 pub mod server;
 /// Operations that change data: one transaction each, with their activity-log row.

@@ -24,6 +24,9 @@ pub enum ScienceError {
     /// An iterative solve that did not converge (should not happen for valid inputs).
     #[error("{what} did not converge")]
     NoConvergence { what: &'static str },
+    /// A section (a line of wells) that cannot be analysed as given.
+    #[error("section: {0}")]
+    InvalidSection(String),
     /// A fit that had too few points or no admissible solution.
     #[error("cannot fit: {0}")]
     CannotFit(String),

@@ -17,6 +17,7 @@ pub mod column;
 pub mod decompaction;
 pub mod error;
 pub mod fit;
+pub mod flexure;
 pub mod forward;
 pub mod heat_flow;
 pub mod input;

@@ -3,6 +3,7 @@
 //! shape the results as the JSON contract of PRODUCT.md.
 
 pub mod contract;
+pub mod section;
 
 use crate::backstrip::{self, WellHistory};
 use crate::fit::SubsidenceObservation;
