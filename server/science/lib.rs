@@ -23,6 +23,7 @@ pub mod heat_flow;
 pub mod input;
 pub mod lithology;
 pub mod map_projection;
+pub mod maturity;
 pub mod mckenzie;
 pub mod params;
 pub mod phases;
