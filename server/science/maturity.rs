@@ -158,20 +158,27 @@ pub fn easy_ro_history(
     check_path(path)?;
     check_windows(windows)?;
 
+    // The reaction integrals at every point, kept so a window crossing starts from the
+    // integral at the start of its segment instead of integrating the path again.
+    let mut integrals = Vec::with_capacity(path.len());
     let mut reaction_integral = [0.0_f64; 20];
-    let mut points = Vec::with_capacity(path.len());
-    points.push(point_at(path[0], &reaction_integral));
+    integrals.push(reaction_integral);
     for pair in path.windows(2) {
         add_segment(&mut reaction_integral, pair[0], pair[1], 1.0);
-        points.push(point_at(pair[1], &reaction_integral));
+        integrals.push(reaction_integral);
     }
+    let points: Vec<ReflectancePoint> = path
+        .iter()
+        .zip(&integrals)
+        .map(|(p, integral)| point_at(*p, integral))
+        .collect();
 
     let windows = windows
         .iter()
         .map(|w| WindowPassage {
             name: w.name.clone(),
-            entered_ma: age_reaching(path, &points, w.ro_min),
-            left_ma: age_reaching(path, &points, w.ro_max),
+            entered_ma: age_reaching(path, &points, &integrals, w.ro_min),
+            left_ma: age_reaching(path, &points, &integrals, w.ro_max),
         })
         .collect();
     Ok(MaturityHistory { points, windows })
@@ -314,17 +321,18 @@ fn scaled_e1(x: f64) -> f64 {
 }
 
 /// First age at which %Ro reaches `ro`, found inside the segment where it is crossed.
-fn age_reaching(path: &[TimeTemperature], points: &[ReflectancePoint], ro: f64) -> Option<f64> {
+fn age_reaching(
+    path: &[TimeTemperature],
+    points: &[ReflectancePoint],
+    integrals: &[[f64; 20]],
+    ro: f64,
+) -> Option<f64> {
     if points[0].ro_percent >= ro {
         return Some(points[0].age_ma);
     }
     let k = points.iter().position(|p| p.ro_percent >= ro)?;
     let (from, to) = (path[k - 1], path[k]);
-    // Integrals at the start of the crossing segment, recomputed along the path.
-    let mut start = [0.0_f64; 20];
-    for pair in path[..k].windows(2) {
-        add_segment(&mut start, pair[0], pair[1], 1.0);
-    }
+    let start = integrals[k - 1];
     let ro_after = |share: f64| {
         let mut integral = start;
         add_segment(&mut integral, from, to, share);
