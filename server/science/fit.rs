@@ -60,13 +60,16 @@ pub struct RiftEvent {
 
 /// A uniform-stretching (McKenzie 1978) fit: one or two events, oldest first.
 ///
-/// With two events the second stretches a lithosphere already thinned by the first's
-/// beta1 and assumed re-equilibrated, so its Si and S_T are those of a single event of
-/// its own beta2 scaled by 1/beta1 (a fraction 1/beta1 of the original column is left
-/// to stretch). Total subsidence at t -> inf is then exactly that of one event of
-/// beta1 beta2, the cumulative factor of W10 §7.9 (docs/science.md 6); the first event's
-/// thermal transient is superposed unchanged. A second event before the first has
-/// decayed really needs a numerical thermal model (docs/science.md 6, 8.2 item 4).
+/// With two events the second acts on a plate assumed thermally re-equilibrated after
+/// the first: the thermal lithosphere is back to its thickness a and only the crust stays
+/// thinned, to tc / beta1. So the second event's initial subsidence is McKenzie's Si for
+/// a crust of tc / beta1 stretched by beta2, and its thermal subsidence and heat-flow
+/// excess are those of a single event of beta2, not scaled by 1 / beta1
+/// (docs/science.md 6, "second event"; the check value 490.82 m for beta1 = beta2 = 1.5,
+/// tc = 35 km is from an independent finite-difference run). The first event's thermal
+/// transient is superposed unchanged. Where the second event comes before the first has
+/// decayed the anomalies do not simply add; the closed form is then an approximation
+/// that needs the numerical lithosphere (docs/science.md 6, 8.2 item 4).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct UniformFit {
     pub events: Vec<RiftEvent>,
@@ -84,18 +87,19 @@ impl UniformFit {
 
     /// The model's tectonic subsidence at `age_ma` (m), full thermal series.
     pub fn subsidence_m(&self, lithosphere: &Lithosphere, age_ma: f64) -> f64 {
-        let mut weight = 1.0;
+        let mut crust_m = lithosphere.crust_thickness_m;
         let mut y = self.pre_rift_subsidence_m;
         for e in &self.events {
             let ramp = ramp(e.rift_onset_ma, e.rift_end_ma, age_ma);
-            let si = lithosphere.initial_subsidence_m(e.beta);
+            let si =
+                lithosphere.initial_subsidence_limit_for_crust_m(crust_m) * (1.0 - 1.0 / e.beta);
             let st = lithosphere.thermal_subsidence_m(
                 e.beta,
                 e.rift_end_ma - age_ma,
                 super::mckenzie::ThermalSeries::Full,
             );
-            y += weight * (ramp * si + st);
-            weight /= e.beta;
+            y += ramp * si + st;
+            crust_m /= e.beta;
         }
         y
     }
@@ -361,28 +365,27 @@ impl<'a> FitProblem<'a> {
         (rss, y0)
     }
 
-    /// RSS and Y0 of uniform events with these betas (weights per [`UniformFit`]).
+    /// RSS and Y0 of uniform events with these betas (combined per [`UniformFit`]).
     pub(crate) fn uniform_misfit(&mut self, y: &[f64], betas: &[f64]) -> (f64, f64) {
         self.model.fill(0.0);
         let l = self.lithosphere;
-        let (e0, si_inf, st_inf) = (
+        let (e0, st_inf) = (
             l.thermal_amplitude_m(),
-            l.initial_subsidence_limit_m(),
             l.thermal_amplitude_m() * PI * PI / 8.0,
         );
-        let mut weight = 1.0;
+        // Each event stretches the crust the earlier ones left (see UniformFit).
+        let mut crust_m = l.crust_thickness_m;
         for (basis, &beta) in self.events.iter().zip(betas) {
             let u = 1.0 - 1.0 / beta;
             uniform_modes(beta, &mut self.coefficients);
-            self.coefficients.iter_mut().for_each(|c| *c *= weight);
             basis.add_to(
                 &mut self.model,
-                weight * u * si_inf,
-                weight * u * st_inf,
+                u * l.initial_subsidence_limit_for_crust_m(crust_m),
+                u * st_inf,
                 e0,
                 &self.coefficients,
             );
-            weight /= beta;
+            crust_m /= beta;
         }
         self.misfit(y)
     }

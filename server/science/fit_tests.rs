@@ -1,6 +1,5 @@
 use super::*;
 use crate::ModelParameters;
-use crate::mckenzie::ThermalSeries;
 use crate::tolerance::{assert_printed, assert_relative};
 
 pub(crate) fn mckenzie() -> Lithosphere {
@@ -179,11 +178,8 @@ fn two_events_are_fitted_jointly() {
         pre_rift_subsidence_m: 0.0,
         rms_misfit_m: 0.0,
     };
-    // With both events long past, the total approaches that of one event of beta 1.4 x 1.6
-    // (W10 §7.9 product rule, as the superposition is built to honour).
-    let single =
-        l.initial_subsidence_m(2.24) + l.final_thermal_subsidence_m(2.24, ThermalSeries::Full);
-    assert_relative(truth.subsidence_m(&l, -5000.0), single, 1e-9, "final total");
+    // The bases' values are the crust-thinning rule of UniformFit (checked on its own in
+    // `second_event_stretches_the_thinned_crust`); here only the joint fit is under test.
     let curve: Vec<_> = (0..=40)
         .map(|i| 200.0 - 5.0 * i as f64)
         .map(|a| exact(a, truth.subsidence_m(&l, a)))
@@ -233,4 +229,55 @@ fn the_recurrence_sines_and_the_mode_basis_match_direct_evaluation() {
         let n = (2 * j + 1) as f64;
         assert_relative(*v, (-n * n * 0.05).exp(), 1e-10, "decay");
     }
+}
+
+/// The corrected second-event rule (docs/science.md 6, "second event"): on a
+/// re-equilibrated plate only the crust stays thinned, to tc / beta1, so the second jump
+/// is McKenzie's Si for a 23.33 km crust stretched by beta2.
+/// Check values: 490.82 m from the independent finite-difference run quoted in
+/// ../shared/SCIENCE.md 6; Si(1.5) = 1424.756 m and S_T(inf, 1.5) = 1301.820 m from the
+/// published tables of SCIENCE 4.2 and 4.3.
+#[test]
+fn second_event_stretches_the_thinned_crust() {
+    let l = mckenzie();
+    let event = |onset: f64, beta: f64| RiftEvent {
+        rift_onset_ma: onset,
+        rift_end_ma: onset - 1e-6,
+        beta,
+    };
+    let fit = UniformFit {
+        events: vec![event(1000.0, 1.5), event(100.0, 1.5)],
+        pre_rift_subsidence_m: 0.0,
+        rms_misfit_m: 0.0,
+    };
+    // 900 Myr after the first event its transient is gone (exp(-900/62.7) ~ 6e-7).
+    let jump = fit.subsidence_m(&l, 100.0 - 1e-6) - fit.subsidence_m(&l, 100.0);
+    assert_printed(jump, 490.82, 2, "second-event jump, beta1 = beta2 = 1.5");
+    let single_first = l.initial_subsidence_m(1.5);
+    assert_printed(single_first, 1424.756, 3, "first-event Si, beta 1.5");
+    // Long after both: Si1 + S_T(inf, 1.5) + Si2 + S_T(inf, 1.5), each event its own
+    // thermal anomaly (not scaled by 1/beta1).
+    let expected_total = 1424.756 + 1301.820 + 490.82 + 1301.820;
+    assert_printed(
+        fit.subsidence_m(&l, -5000.0),
+        expected_total,
+        2,
+        "total after both events",
+    );
+    // Heat flow: the second event's excess just after it is that of a single beta 1.5
+    // event, not 1/beta1 of it. The first's excess has decayed to nothing by then.
+    let equilibrium = l.equilibrium_heat_flow_mw_m2();
+    let after_second = crate::heat_flow::uniform_heat_flow_mw_m2(&l, &fit, 100.0 - 1e-6);
+    let single = UniformFit {
+        events: vec![event(100.0, 1.5)],
+        pre_rift_subsidence_m: 0.0,
+        rms_misfit_m: 0.0,
+    };
+    let single_flow = crate::heat_flow::uniform_heat_flow_mw_m2(&l, &single, 100.0 - 1e-6);
+    assert_relative(
+        after_second - equilibrium,
+        single_flow - equilibrium,
+        1e-4,
+        "second-event heat-flow excess",
+    );
 }

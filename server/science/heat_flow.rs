@@ -9,8 +9,9 @@
 //! * after the rift end, the McKenzie (1978) / Royden & Keen (1980) series of
 //!   docs/science.md 4.4 and 5 with t = rift end age - age.
 //!
-//! With two events the excesses are superposed with the weights of the subsidence model
-//! (1 for the first, 1/beta1 for the second), the same approximation.
+//! With two events the excesses are superposed, each that of a single event of its own
+//! factor (the second is not scaled by 1/beta1: after re-equilibration only the crust
+//! stays thinned, docs/science.md 6), the same approximation as the subsidence model.
 
 use super::ScienceError;
 use super::fit::{TwoLayerFit, UniformFit, ramp};
@@ -44,12 +45,10 @@ fn event_excess(
 /// McKenzie (1978); docs/science.md 4.4.
 pub fn uniform_heat_flow_mw_m2(lithosphere: &Lithosphere, fit: &UniformFit, age_ma: f64) -> f64 {
     let equilibrium = lithosphere.equilibrium_heat_flow_mw_m2();
-    let mut weight = 1.0;
     let mut flow = equilibrium;
     for e in &fit.events {
         let after = |t: f64| lithosphere.heat_flow_mw_m2(e.beta, t);
-        flow += weight * event_excess(e.rift_onset_ma, e.rift_end_ma, age_ma, equilibrium, after);
-        weight /= e.beta;
+        flow += event_excess(e.rift_onset_ma, e.rift_end_ma, age_ma, equilibrium, after);
     }
     flow
 }

@@ -113,7 +113,15 @@ impl Lithosphere {
     /// Initial subsidence for infinite stretching, Si(beta -> inf) in m; Si(beta) is
     /// this times (1 - 1/beta). McKenzie (1978); W10 eq. 7.28; docs/science.md 4.2.
     pub fn initial_subsidence_limit_m(&self) -> f64 {
-        let (a, tc) = (self.lithosphere_thickness_m, self.crust_thickness_m);
+        self.initial_subsidence_limit_for_crust_m(self.crust_thickness_m)
+    }
+
+    /// Si(beta -> inf) of this lithosphere with its crust `crust_thickness_m` thick
+    /// instead of the parameters' tc, in m: the same formula with tc replaced. Used for a
+    /// later rift event, whose crust an earlier event left thinned to tc / beta1 on a
+    /// thermally re-equilibrated plate (docs/science.md 6, "second event").
+    pub fn initial_subsidence_limit_for_crust_m(&self, crust_thickness_m: f64) -> f64 {
+        let (a, tc) = (self.lithosphere_thickness_m, crust_thickness_m);
         let (rho0, rhoc) = (self.mantle_density_kg_m3, self.crust_density_kg_m3);
         let at1 = self.alpha_t1();
         a * ((rho0 - rhoc) * (tc / a) * (1.0 - at1 * tc / (2.0 * a)) - at1 * rho0 / 2.0)

@@ -125,7 +125,11 @@ pub fn propose_phases(
     let no_rift = line_fit(observations);
     let no_rift_bic = bic(no_rift.rms_misfit_m.powi(2) * n as f64, n, 2);
 
-    let one = search.refine(&search.candidates(&y, 0, n - 1), &search.ages, &y);
+    let one = search.refine(
+        &search.candidates(&y, 0, n - 1, lithosphere.crust_thickness_m),
+        &search.ages,
+        &y,
+    );
     let one_bic = bic(rss_of(&one, n), n, 4);
     // A second event (3 more parameters) can only win if removing all of the single
     // event's misfit would pay the penalty; otherwise it is not searched.
@@ -336,8 +340,10 @@ impl<'a> Search<'a> {
         }
     }
 
-    /// The [`REFINED`] best (onset, end) pairs with onset >= `lo`, end <= `hi`, for `y`.
-    fn candidates(&self, y: &[f64], lo: usize, hi: usize) -> Vec<Candidate> {
+    /// The [`REFINED`] best (onset, end) pairs with onset >= `lo`, end <= `hi`, for `y`,
+    /// stretching a crust `crust_m` thick (the parameters' tc, or what an earlier event
+    /// left of it, see [`UniformFit`]).
+    fn candidates(&self, y: &[f64], lo: usize, hi: usize, crust_m: f64) -> Vec<Candidate> {
         let n = y.len();
         let a = &self.ages;
         let mean = y.iter().sum::<f64>() / n as f64;
@@ -351,7 +357,7 @@ impl<'a> Search<'a> {
         let syy: f64 = y.iter().map(|v| (v - mean).powi(2)).sum();
         let l = self.lithosphere;
         let (si_inf, st_inf) = (
-            l.initial_subsidence_limit_m(),
+            l.initial_subsidence_limit_for_crust_m(crust_m),
             l.thermal_amplitude_m() * PI * PI / 8.0,
         );
         let mut best: Vec<Candidate> = Vec::with_capacity(REFINED + 1);
@@ -447,7 +453,10 @@ impl<'a> Search<'a> {
         let mut pairs: Vec<(UniformFit, Candidate)> = Vec::with_capacity(3);
         for split in (2..n - 2).step_by(stride) {
             let head = split + 1;
-            let Some(&a) = self.candidates(&y[..head], 0, split).first() else {
+            let Some(&a) = self
+                .candidates(&y[..head], 0, split, self.lithosphere.crust_thickness_m)
+                .first()
+            else {
                 continue;
             };
             let older = self.refine(&[a], &self.ages[..head], &y[..head]);
@@ -460,7 +469,15 @@ impl<'a> Search<'a> {
                 .zip(&self.ages)
                 .map(|(v, &age)| v - alone.subsidence_m(self.lithosphere, age))
                 .collect();
-            if let Some(&b) = self.candidates(&residual, split, n - 1).first() {
+            if let Some(&b) = self
+                .candidates(
+                    &residual,
+                    split,
+                    n - 1,
+                    self.lithosphere.crust_thickness_m / older.events[0].beta,
+                )
+                .first()
+            {
                 let at = pairs.partition_point(|p| p.1.rss <= b.rss);
                 pairs.insert(at, (older, b));
                 pairs.truncate(2);
@@ -475,9 +492,9 @@ impl<'a> Search<'a> {
                     (self.ages[b.onset], self.ages[b.end]),
                 ];
                 let mut problem = FitProblem::new(self.lithosphere, &self.ages, &timings);
-                // The younger event's weight is 1/beta1 (see UniformFit): start from the
-                // u that gives the residual fit's amplitude.
-                let start = [1.0 - 1.0 / first.beta, (b.u * first.beta).min(max_u())];
+                // The younger event's thermal part is that of its own beta2 (see
+                // UniformFit), so the residual fit's u is already a good start.
+                let start = [1.0 - 1.0 / first.beta, b.u.min(max_u())];
                 let u = problem.refit_near(y, ModelKind::Uniform, &start);
                 problem.fit_uniform_at(y, &[factor_from_u(u[0]), factor_from_u(u[1])])
             })
