@@ -27,6 +27,9 @@ pub enum ScienceError {
     /// A section (a line of wells) that cannot be analysed as given.
     #[error("section: {0}")]
     InvalidSection(String),
+    /// A lithosphere model run that cannot be made as asked.
+    #[error("lithosphere model: {0}")]
+    InvalidModel(String),
     /// A fit that had too few points or no admissible solution.
     #[error("cannot fit: {0}")]
     CannotFit(String),

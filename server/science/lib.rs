@@ -25,6 +25,7 @@ pub mod lithology;
 pub mod map_projection;
 pub mod maturity;
 pub mod mckenzie;
+pub mod numerical_lithosphere;
 pub mod params;
 pub mod phases;
 pub mod search1d;
