@@ -3,10 +3,13 @@
 //! candidate (rift onset, rift end) pair of surface ages and choosing by a penalised
 //! misfit (docs/science.md 8.2 item 3, "model-based, recommended for software").
 //!
-//! Models compared, by the Bayesian information criterion
-//! `BIC = N ln(RSS/N + s^2) + k ln N` with a misfit floor s = [`MISFIT_FLOOR_M`]:
-//! no rift (a straight line in age, k = 2), one rift event (onset, end, beta, Y0: k = 4)
-//! and two events (k = 7, accepted only if the BIC improves; docs/science.md 8.2 item 4).
+//! Models compared, by the Bayesian information criterion measured against the data's
+//! own uncertainty, `BIC = chi^2 + k ln N` with `chi^2 = sum ((y - model) / sigma)^2`
+//! and sigma at each surface half the width of its tectonic-subsidence range (what the
+//! water-depth range allows), at least [`MISFIT_FLOOR_M`]: no rift (a straight line in
+//! age, k = 2), one rift event (onset, end, beta, Y0: k = 4) and two events (k = 7,
+//! accepted only if the BIC improves; docs/science.md 8.2 item 4). So a model that fits
+//! within the palaeo-water-depth uncertainty is not beaten by one that fits the noise.
 //!
 //! Search, one event: for each end surface and each beta on a grid of u = 1 - 1/beta,
 //! the post-rift sums are computed once; the syn-rift sums for every onset then come
@@ -84,6 +87,79 @@ pub struct ModelScores {
     pub no_rift: f64,
     pub one_event: Option<f64>,
     pub two_events: Option<f64>,
+    /// BIC of the depth-dependent event with the single event's timing.
+    #[serde(default)]
+    pub two_layer: Option<f64>,
+    /// The fullest model's chi^2 per degree of freedom, at least 1: how many times the
+    /// squared misfit exceeds what the data's uncertainty allows. Above 1 the stated
+    /// ranges are too narrow for any model tried, and every chi^2 was divided by it
+    /// before scoring (so understated ranges do not reward extra events).
+    #[serde(default = "one")]
+    pub misfit_scale: f64,
+}
+
+fn one() -> f64 {
+    1.0
+}
+
+/// chi^2 per degree of freedom of a k-parameter model, at least 1.
+fn misfit_scale(chi_square: f64, n: usize, k: usize) -> f64 {
+    if n > k {
+        (chi_square / (n - k) as f64).max(1.0)
+    } else {
+        1.0
+    }
+}
+
+/// Which stretching model a proposal settled on.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum StretchingModel {
+    /// No stretching: a steady trend.
+    NoRift,
+    /// One uniform (McKenzie 1978) event.
+    Uniform,
+    /// Two uniform events.
+    TwoEvents,
+    /// One depth-dependent (Royden & Keen 1980) event: crust delta, mantle beta.
+    TwoLayer,
+}
+
+impl StretchingModel {
+    /// The trade's name, for pages and warnings.
+    pub fn label(self) -> &'static str {
+        match self {
+            StretchingModel::NoRift => "no rift",
+            StretchingModel::Uniform => "one uniform event",
+            StretchingModel::TwoEvents => "two uniform events",
+            StretchingModel::TwoLayer => "one depth-dependent event",
+        }
+    }
+
+    /// Free parameters, counted for the penalty: line level and rate; onset, end, beta
+    /// and Y0; twice the event's three plus Y0; onset, end, delta, beta and Y0.
+    pub fn parameters(self) -> usize {
+        match self {
+            StretchingModel::NoRift => 2,
+            StretchingModel::Uniform => 4,
+            StretchingModel::TwoEvents => 7,
+            StretchingModel::TwoLayer => 5,
+        }
+    }
+}
+
+/// One model that was tried, with its score: the proposal keeps them all, best first,
+/// so an analyst sees how close the call was.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Alternative {
+    pub model: StretchingModel,
+    /// BIC against the data's uncertainty (lower is better).
+    pub bic: f64,
+    /// BIC less the best model's (0 for the chosen one).
+    pub bic_above_best: f64,
+    pub rms_misfit_m: f64,
+    /// Why it could not be chosen, when it could not (e.g. a factor at its bound).
+    pub refused: Option<String>,
 }
 
 /// The phases of one well and the fits behind them.
@@ -97,15 +173,67 @@ pub struct PhaseProposal {
     pub no_rift: NoRiftFit,
     pub scores: ModelScores,
     pub origin: PickOrigin,
+    /// The model chosen (for a team pick, the picked one).
+    pub model: StretchingModel,
+    /// Every model tried, best score first.
+    pub alternatives: Vec<Alternative>,
+    /// What an analyst must know before trusting the proposal.
+    pub warnings: Vec<String>,
 }
 
-fn bic(rss: f64, n: usize, k: usize) -> f64 {
-    let n_f = n as f64;
-    n_f * (rss / n_f + MISFIT_FLOOR_M * MISFIT_FLOOR_M).ln() + k as f64 * n_f.ln()
+/// BIC of a model with `k` parameters whose misfit is `chi_square`, for n points.
+fn bic(chi_square: f64, n: usize, k: usize) -> f64 {
+    chi_square + k as f64 * (n as f64).ln()
 }
 
-fn rss_of(fit: &UniformFit, n: usize) -> f64 {
-    fit.rms_misfit_m.powi(2) * n as f64
+/// One standard deviation of each point's tectonic subsidence (m): half the width of its
+/// range, taken as one sigma (a conservative reading of a min-max range), at least
+/// [`MISFIT_FLOOR_M`].
+pub fn subsidence_sigmas_m(observations: &[SubsidenceObservation]) -> Vec<f64> {
+    observations
+        .iter()
+        .map(|o| {
+            let b = o.tectonic_subsidence;
+            (0.5 * (b.max - b.min)).max(MISFIT_FLOOR_M)
+        })
+        .collect()
+}
+
+/// chi^2 of the no-rift line.
+fn line_chi_square(
+    observations: &[SubsidenceObservation],
+    sigmas: &[f64],
+    line: &NoRiftFit,
+) -> f64 {
+    let oldest = observations[0].age_ma;
+    chi_square(observations, sigmas, |age| {
+        line.subsidence_at_oldest_m + line.rate_m_per_myr * (oldest - age)
+    })
+}
+
+/// chi^2 of a uniform fit.
+fn uniform_chi_square(
+    lithosphere: &Lithosphere,
+    observations: &[SubsidenceObservation],
+    sigmas: &[f64],
+    fit: &UniformFit,
+) -> f64 {
+    chi_square(observations, sigmas, |age| {
+        fit.subsidence_m(lithosphere, age)
+    })
+}
+
+/// sum ((best - model(age)) / sigma)^2 over the observations.
+fn chi_square(
+    observations: &[SubsidenceObservation],
+    sigmas: &[f64],
+    model: impl Fn(f64) -> f64,
+) -> f64 {
+    observations
+        .iter()
+        .zip(sigmas)
+        .map(|(o, s)| ((o.tectonic_subsidence.best - model(o.age_ma)) / s).powi(2))
+        .sum()
 }
 
 /// Propose phases for a well from its best tectonic-subsidence curve: every (onset, end)
@@ -123,42 +251,216 @@ pub fn propose_phases(
         .collect();
     let search = Search::new(lithosphere, observations);
     let no_rift = line_fit(observations);
-    let no_rift_bic = bic(no_rift.rms_misfit_m.powi(2) * n as f64, n, 2);
+    let sigmas = subsidence_sigmas_m(observations);
+    let uniform_chi2 =
+        |fit: &UniformFit| uniform_chi_square(lithosphere, observations, &sigmas, fit);
+    let line_chi2 = line_chi_square(observations, &sigmas, &no_rift);
 
     let one = search.refine(
         &search.candidates(&y, 0, n - 1, lithosphere.crust_thickness_m),
         &search.ages,
         &y,
     );
-    let one_bic = bic(rss_of(&one, n), n, 4);
+    let one_chi2 = uniform_chi2(&one);
     // A second event (3 more parameters) can only win if removing all of the single
     // event's misfit would pay the penalty; otherwise it is not searched.
-    let best_gain = n as f64 * (rss_of(&one, n) / n as f64 / MISFIT_FLOOR_M.powi(2) + 1.0).ln();
-    let two = if n >= 8 && best_gain > 3.0 * (n as f64).ln() {
+    let two = if n >= 8 && one_chi2 / misfit_scale(one_chi2, n, 4) > 3.0 * (n as f64).ln() {
         search.second_event(&y)
     } else {
         None
     };
-    let two_bic = two.as_ref().map(|f| bic(rss_of(f, n), n, 7));
-
+    let two_chi2 = two.as_ref().map(uniform_chi2);
+    let first = one.events[0];
+    let two_layer = super::fit::fit_two_layer(
+        lithosphere,
+        observations,
+        SubsidenceCurve::Best,
+        first.rift_onset_ma,
+        first.rift_end_ma,
+    )
+    .ok();
+    let two_layer_chi2 = two_layer.as_ref().map(|t| {
+        chi_square(observations, &sigmas, |age| {
+            t.subsidence_m(lithosphere, age)
+        })
+    });
+    // Scores are measured against the data's uncertainty, or against the fullest model's
+    // misfit where that is larger (ranges too narrow for any model).
+    let scale = match two_chi2 {
+        Some(chi2) => misfit_scale(chi2, n, 7),
+        None => misfit_scale(one_chi2, n, 4),
+    };
+    let score = |chi2: f64, model: StretchingModel| bic(chi2 / scale, n, model.parameters());
     let scores = ModelScores {
-        no_rift: no_rift_bic,
-        one_event: Some(one_bic),
-        two_events: two_bic,
+        no_rift: score(line_chi2, StretchingModel::NoRift),
+        one_event: Some(score(one_chi2, StretchingModel::Uniform)),
+        two_events: two_chi2.map(|c| score(c, StretchingModel::TwoEvents)),
+        two_layer: two_layer_chi2.map(|c| score(c, StretchingModel::TwoLayer)),
+        misfit_scale: scale,
     };
-    let chosen = match two {
-        Some(two) if two_bic.unwrap() < one_bic.min(no_rift_bic) => Some(two),
-        _ if one_bic < no_rift_bic => Some(one),
-        _ => None,
+    let at_bound = |factors: &[f64]| factors.iter().any(|&f| f >= AT_BOUND);
+    let mut tried = vec![
+        (
+            StretchingModel::NoRift,
+            scores.no_rift,
+            no_rift.rms_misfit_m,
+            None,
+        ),
+        (
+            StretchingModel::Uniform,
+            scores.one_event.unwrap_or(f64::INFINITY),
+            one.rms_misfit_m,
+            at_bound(&[first.beta]).then_some(FACTOR_AT_BOUND),
+        ),
+    ];
+    if let (Some(two), Some(b)) = (&two, scores.two_events) {
+        let betas: Vec<f64> = two.events.iter().map(|e| e.beta).collect();
+        tried.push((
+            StretchingModel::TwoEvents,
+            b,
+            two.rms_misfit_m,
+            at_bound(&betas).then_some(FACTOR_AT_BOUND),
+        ));
+    }
+    if let (Some(t), Some(b)) = (&two_layer, scores.two_layer) {
+        // delta = beta is the uniform model: only a real difference is a model of its own.
+        let distinct = (t.delta - t.beta).abs() > 0.01 * t.beta.min(t.delta);
+        let refused = if at_bound(&[t.delta, t.beta]) {
+            Some(FACTOR_AT_BOUND)
+        } else if !distinct {
+            Some("the same as the uniform event")
+        } else {
+            // Until rifts of finite duration are fitted, a slow uniform rift can score as
+            // depth-dependent (seen on numerically modelled wells): scored and shown, and
+            // warned about when better, but not chosen on its own.
+            Some(TWO_LAYER_NOT_AUTOMATIC)
+        };
+        tried.push((StretchingModel::TwoLayer, b, t.rms_misfit_m, refused));
+    }
+    tried.sort_by(|a, b| a.1.total_cmp(&b.1));
+    let model = tried
+        .iter()
+        .find(|t| t.3.is_none())
+        .map_or(StretchingModel::NoRift, |t| t.0);
+    let best_bic = tried
+        .iter()
+        .find(|t| t.0 == model)
+        .map_or(scores.no_rift, |t| t.1);
+    let alternatives: Vec<Alternative> = tried
+        .iter()
+        .map(|&(model, bic, rms_misfit_m, refused)| Alternative {
+            refused: refused.map(str::to_string),
+            model,
+            bic,
+            bic_above_best: bic - best_bic,
+            rms_misfit_m,
+        })
+        .collect();
+    let chosen = match model {
+        StretchingModel::NoRift => None,
+        StretchingModel::TwoEvents => two,
+        StretchingModel::Uniform | StretchingModel::TwoLayer => Some(one),
     };
-    Ok(assemble(
+    let mut proposal = assemble(
         lithosphere,
         observations,
         chosen,
         no_rift,
         scores,
         PickOrigin::Proposed,
-    ))
+    );
+    if model == StretchingModel::TwoLayer {
+        proposal.two_layer = two_layer;
+    }
+    proposal.model = model;
+    proposal.alternatives = alternatives;
+    proposal.warnings = proposal_warnings(&proposal, observations, &sigmas);
+    Ok(proposal)
+}
+
+/// A factor within this of [`super::fit::MAX_STRETCHING_FACTOR`] is at its bound.
+const AT_BOUND: f64 = super::fit::MAX_STRETCHING_FACTOR * (1.0 - 1e-6);
+const FACTOR_AT_BOUND: &str = "a stretching factor at its bound";
+const TWO_LAYER_NOT_AUTOMATIC: &str =
+    "not chosen automatically: a uniform rift of finite duration can look depth-dependent";
+/// BIC difference that counts as positive evidence for a model (Kass & Raftery 1995: 2-6
+/// "positive" [memory]).
+pub const BIC_EVIDENCE: f64 = 2.0;
+
+/// Pre-rift rate above which "pre-rift" is doubtful, m/Myr (docs/science.md 8.1: slow
+/// subsidence before a rift is a few m/Myr; common practice).
+pub const PRE_RIFT_RATE_LIMIT_M_PER_MYR: f64 = 10.0;
+/// Misfit scale above which the model is said to fit worse than the data allow.
+pub const POOR_FIT_SCALE: f64 = 4.0;
+
+/// The warnings of a proposal: a misfit well beyond the data's uncertainty, a refused
+/// factor at its bound, tectonic uplift, a fast "pre-rift" and too few surfaces.
+fn proposal_warnings(
+    proposal: &PhaseProposal,
+    observations: &[SubsidenceObservation],
+    sigmas: &[f64],
+) -> Vec<String> {
+    let mut warnings = Vec::new();
+    let scale = proposal.scores.misfit_scale;
+    if scale > POOR_FIT_SCALE {
+        warnings.push(format!(
+            "the best model ({}) misfits the data {:.1} times more than their water-depth ranges allow: check the tops and ranges, or treat the interpretation as doubtful",
+            proposal.model.label(),
+            scale.sqrt()
+        ));
+    }
+    for a in &proposal.alternatives {
+        if a.refused.as_deref() == Some(FACTOR_AT_BOUND) && a.bic_above_best < 0.0 {
+            warnings.push(format!(
+                "{} would score better but needs {FACTOR_AT_BOUND} ({}): not proposed",
+                a.model.label(),
+                super::fit::MAX_STRETCHING_FACTOR
+            ));
+        }
+    }
+    for a in &proposal.alternatives {
+        if a.refused.as_deref() == Some(TWO_LAYER_NOT_AUTOMATIC) && a.bic_above_best < -BIC_EVIDENCE
+        {
+            warnings.push(format!(
+                "a depth-dependent event (crust and mantle stretched differently) scores better than {} by {:.1}: compare the two-layer fit before agreeing",
+                proposal.model.label(),
+                -a.bic_above_best
+            ));
+        }
+    }
+    // Uplift: tectonic subsidence going up by more than the two surfaces' uncertainty.
+    for (i, w) in observations.windows(2).enumerate() {
+        let rise = w[0].tectonic_subsidence.best - w[1].tectonic_subsidence.best;
+        if rise > sigmas[i] + sigmas[i + 1] {
+            warnings.push(format!(
+                "uplift or inversion between {} and {} Ma: tectonic subsidence goes up by {:.0} m",
+                w[0].age_ma, w[1].age_ma, rise
+            ));
+        }
+    }
+    if let Some(fit) = &proposal.uniform {
+        let onset = fit.events[0].rift_onset_ma;
+        let before: Vec<&SubsidenceObservation> =
+            observations.iter().filter(|o| o.age_ma >= onset).collect();
+        if before.len() >= 2 {
+            let (a, b) = (before[0], before[before.len() - 1]);
+            let rate =
+                (b.tectonic_subsidence.best - a.tectonic_subsidence.best) / (a.age_ma - b.age_ma);
+            if rate > PRE_RIFT_RATE_LIMIT_M_PER_MYR {
+                warnings.push(format!(
+                    "the pre-rift interval subsides at {rate:.0} m/Myr, faster than a pre-rift usually does (about {PRE_RIFT_RATE_LIMIT_M_PER_MYR} m/Myr at most): the rift may start earlier than the oldest surface"
+                ));
+            }
+        }
+    }
+    if observations.len() < 2 * proposal.model.parameters() {
+        warnings.push(format!(
+            "{} surfaces for a model of {} parameters: the fit is poorly constrained",
+            observations.len(),
+            proposal.model.parameters()
+        ));
+    }
+    warnings
 }
 
 /// Refit with the team's rift timing, one or two `(onset_ma, end_ma)` pairs oldest first,
@@ -183,19 +485,56 @@ pub fn phases_from_picks(
     let n = observations.len();
     let no_rift = line_fit(observations);
     let k = if timings.len() == 1 { 4 } else { 7 };
+    let sigmas = subsidence_sigmas_m(observations);
+    let fit_chi2 = uniform_chi_square(lithosphere, observations, &sigmas, &fit);
+    let scale = misfit_scale(fit_chi2, n, k);
+    let fit_bic = bic(fit_chi2 / scale, n, k);
     let scores = ModelScores {
-        no_rift: bic(no_rift.rms_misfit_m.powi(2) * n as f64, n, 2),
-        one_event: (k == 4).then(|| bic(rss_of(&fit, n), n, 4)),
-        two_events: (k == 7).then(|| bic(rss_of(&fit, n), n, 7)),
+        no_rift: bic(
+            line_chi_square(observations, &sigmas, &no_rift) / scale,
+            n,
+            2,
+        ),
+        one_event: (k == 4).then_some(fit_bic),
+        two_events: (k == 7).then_some(fit_bic),
+        two_layer: None,
+        misfit_scale: scale,
     };
-    Ok(assemble(
+    let model = if k == 4 {
+        StretchingModel::Uniform
+    } else {
+        StretchingModel::TwoEvents
+    };
+    let rms_misfit_m = fit.rms_misfit_m;
+    let mut proposal = assemble(
         lithosphere,
         observations,
         Some(fit),
         no_rift,
         scores,
         PickOrigin::Team,
-    ))
+    );
+    proposal.model = model;
+    let mut alternatives = vec![
+        Alternative {
+            model,
+            bic: fit_bic,
+            bic_above_best: 0.0,
+            rms_misfit_m,
+            refused: None,
+        },
+        Alternative {
+            model: StretchingModel::NoRift,
+            bic: scores.no_rift,
+            bic_above_best: scores.no_rift - fit_bic,
+            rms_misfit_m: no_rift.rms_misfit_m,
+            refused: None,
+        },
+    ];
+    alternatives.sort_by(|a, b| a.bic.total_cmp(&b.bic));
+    proposal.alternatives = alternatives;
+    proposal.warnings = proposal_warnings(&proposal, observations, &sigmas);
+    Ok(proposal)
 }
 
 fn assemble(
@@ -245,6 +584,11 @@ fn assemble(
         }
         _ => None,
     };
+    let model = match chosen.as_ref().map(|f| f.events.len()) {
+        None => StretchingModel::NoRift,
+        Some(1) => StretchingModel::Uniform,
+        Some(_) => StretchingModel::TwoEvents,
+    };
     PhaseProposal {
         intervals,
         uniform: chosen,
@@ -252,6 +596,9 @@ fn assemble(
         no_rift,
         scores,
         origin,
+        model,
+        alternatives: Vec::new(),
+        warnings: Vec::new(),
     }
 }
 
