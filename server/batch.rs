@@ -413,6 +413,7 @@ fn internal_failure(well: &str) -> WellOut {
         history: Vec::new(),
         phases: Vec::new(),
         stretching: None,
+        model_choice: None,
         fit_note: None,
     }
 }

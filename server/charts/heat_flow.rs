@@ -1,4 +1,4 @@
-//! The heat-flow chart of the well page: surface heat flow through time from the
+//! The heat-flow chart of the well page: basal (mantle) heat flow through time from the
 //! stretching fit, against the equilibrium (pre-rift) heat flow.
 
 use super::frame::{
@@ -13,9 +13,9 @@ use super::svg::{Document, group, polyline, titled};
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct HeatFlowChartData {
     pub title: String,
-    /// (age Ma, surface heat flow mW/m²); any order.
+    /// (age Ma, basal heat flow mW/m²); any order.
     pub heat_flow: Vec<(f64, f64)>,
-    /// The equilibrium surface heat flow of the unstretched lithosphere (mW/m²).
+    /// The equilibrium heat flow of the unstretched lithosphere (mW/m²).
     pub equilibrium_mw_m2: Option<f64>,
     /// Rift phases to shade behind the curve (may be empty).
     pub phases: Vec<PhaseBand>,
@@ -59,7 +59,7 @@ fn draw(data: &HeatFlowChartData, doc: &mut Document, body: Area) {
         x: age_axis(ages),
         y: bottom..top,
         x_desc: "Age (Ma)",
-        y_desc: "Surface heat flow (mW/m²)",
+        y_desc: "Basal heat flow (mW/m²)",
         y_label_area: 64.0,
         y_ticks: true,
     };
@@ -83,7 +83,7 @@ fn draw(data: &HeatFlowChartData, doc: &mut Document, body: Area) {
     } else {
         line_with_points(&plot, &curve, HEAT, group("heat-flow"))
     };
-    doc.push(titled(heat, "Surface heat flow"));
+    doc.push(titled(heat, "Basal (mantle) heat flow"));
 
     let mut entries = vec![LegendEntry::new("Heat flow (fit)", Swatch::Line(HEAT))];
     if let Some(q) = equilibrium {
@@ -142,7 +142,7 @@ mod tests {
     fn heat_flow_axis_has_units_and_time_runs_old_to_young() {
         let svg = heat_flow_chart(&sample_heat_flow(), ChartSize::default());
         let doc = parse(&svg);
-        assert!(axis_labels(&doc).contains(&"Surface heat flow (mW/m²)".to_string()));
+        assert!(axis_labels(&doc).contains(&"Basal heat flow (mW/m²)".to_string()));
         let x = x_axis_map(&doc);
         assert!(x(100.0) < x(10.0));
         let y = y_axis_map(&doc);

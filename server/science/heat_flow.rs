@@ -1,4 +1,7 @@
-//! Basal (surface) heat-flow history of a fitted stretching model, in mW m^-2.
+//! Basal (mantle) heat-flow history of a fitted stretching model, in mW m^-2: the heat
+//! flow out of the top of a plate without radiogenic heat, as the closed forms give it.
+//! The surface heat flow adds the crust's (and the sediments') heat production; the
+//! numerical lithosphere ([`super::numerical_lithosphere`]) gives both.
 //!
 //! Consistent with the subsidence model of [`super::fit`]:
 //! * before the rift onset, the equilibrium `K T1 / a`;
@@ -22,7 +25,7 @@ use serde::{Deserialize, Serialize};
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct HeatFlowPoint {
     pub age_ma: f64,
-    /// Surface heat flow, mW m^-2.
+    /// Basal (mantle) heat flow, mW m^-2.
     pub value: f64,
 }
 

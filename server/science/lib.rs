@@ -16,6 +16,7 @@ pub mod burial;
 pub mod column;
 pub mod decompaction;
 pub mod error;
+pub mod finite_fit;
 pub mod fit;
 pub mod flexure;
 pub mod forward;

@@ -8,7 +8,7 @@
 //! interval), uniform or depth-dependent stretching (crust factor delta, mantle factor
 //! beta over the same interval), several events in sequence, each acting on the geotherm
 //! the previous ones left, and radiogenic heat in the crust, thinned with it.
-//! docs/science.md 6 and "Numerical lithosphere" give the method and its checks.
+//! docs/science-lithosphere.md gives the method, its defaults and its checks.
 //!
 //! # Method
 //!
@@ -150,7 +150,7 @@ pub struct NumericalSettings {
 
 impl Default for NumericalSettings {
     /// 1,001 points (125 m on a 125 km plate) and 0.05 Myr steps, the resolution the
-    /// tests check against the closed forms (docs/science.md, "Numerical lithosphere").
+    /// tests check against the closed forms (docs/science-lithosphere.md 3, 4).
     fn default() -> Self {
         NumericalSettings {
             nodes: 1001,

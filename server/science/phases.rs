@@ -90,10 +90,8 @@ pub struct ModelScores {
     /// BIC of the depth-dependent event with the single event's timing.
     #[serde(default)]
     pub two_layer: Option<f64>,
-    /// The fullest model's chi^2 per degree of freedom, at least 1: how many times the
-    /// squared misfit exceeds what the data's uncertainty allows. Above 1 the stated
-    /// ranges are too narrow for any model tried, and every chi^2 was divided by it
-    /// before scoring (so understated ranges do not reward extra events).
+    /// The chosen model's chi^2 per degree of freedom, at least 1: how many times the
+    /// squared misfit exceeds what the data's uncertainty allows (1 = within it).
     #[serde(default = "one")]
     pub misfit_scale: f64,
 }
@@ -181,9 +179,17 @@ pub struct PhaseProposal {
     pub warnings: Vec<String>,
 }
 
-/// BIC of a model with `k` parameters whose misfit is `chi_square`, for n points.
+/// BIC of a model with `k` parameters whose misfit is `chi_square`, for n points:
+/// `-2 ln L + k ln n` with the Gaussian likelihood of the stated sigmas scaled by a
+/// factor s >= 1 chosen for the model, `-2 ln L = chi^2 / s^2 + n ln s^2` at
+/// `s^2 = max(1, chi^2 / n)`. Within the stated ranges this is `chi^2 + k ln n`; where a
+/// model misfits beyond them it becomes `n + n ln(chi^2 / n) + k ln n`, the usual BIC of
+/// an unknown variance, so ranges stated too narrow neither reward extra events nor hide
+/// a much better fit.
 fn bic(chi_square: f64, n: usize, k: usize) -> f64 {
-    chi_square + k as f64 * (n as f64).ln()
+    let n_f = n as f64;
+    let s2 = (chi_square / n_f).max(1.0);
+    chi_square / s2 + n_f * s2.ln() + k as f64 * n_f.ln()
 }
 
 /// One standard deviation of each point's tectonic subsidence (m): half the width of its
@@ -223,6 +229,18 @@ fn uniform_chi_square(
     })
 }
 
+/// The sigmas the scores use: every point gets the well's root-mean-square sigma. The
+/// closed-form fits are unweighted least squares, so a score that weighted each point by
+/// its own sigma would judge them by a misfit they did not minimise (a first version did,
+/// and let a steady line beat a 2 km rift on a seven-surface well because the fits had
+/// spent their freedom on the loosely known points). Per-point weights come with weighted
+/// fits ([`super::finite_fit`] already is one).
+fn scoring_sigmas_m(observations: &[SubsidenceObservation]) -> Vec<f64> {
+    let sigmas = subsidence_sigmas_m(observations);
+    let rms = (sigmas.iter().map(|s| s * s).sum::<f64>() / sigmas.len() as f64).sqrt();
+    vec![rms; sigmas.len()]
+}
+
 /// sum ((best - model(age)) / sigma)^2 over the observations.
 fn chi_square(
     observations: &[SubsidenceObservation],
@@ -251,7 +269,7 @@ pub fn propose_phases(
         .collect();
     let search = Search::new(lithosphere, observations);
     let no_rift = line_fit(observations);
-    let sigmas = subsidence_sigmas_m(observations);
+    let sigmas = scoring_sigmas_m(observations);
     let uniform_chi2 =
         |fit: &UniformFit| uniform_chi_square(lithosphere, observations, &sigmas, fit);
     let line_chi2 = line_chi_square(observations, &sigmas, &no_rift);
@@ -264,7 +282,10 @@ pub fn propose_phases(
     let one_chi2 = uniform_chi2(&one);
     // A second event (3 more parameters) can only win if removing all of the single
     // event's misfit would pay the penalty; otherwise it is not searched.
-    let two = if n >= 8 && one_chi2 / misfit_scale(one_chi2, n, 4) > 3.0 * (n as f64).ln() {
+    let two = if n >= 8
+        && bic(one_chi2, n, StretchingModel::Uniform.parameters())
+            > bic(0.0, n, StretchingModel::TwoEvents.parameters())
+    {
         search.second_event(&y)
     } else {
         None
@@ -284,27 +305,26 @@ pub fn propose_phases(
             t.subsidence_m(lithosphere, age)
         })
     });
-    // Scores are measured against the data's uncertainty, or against the fullest model's
-    // misfit where that is larger (ranges too narrow for any model).
-    let scale = match two_chi2 {
-        Some(chi2) => misfit_scale(chi2, n, 7),
-        None => misfit_scale(one_chi2, n, 4),
-    };
-    let score = |chi2: f64, model: StretchingModel| bic(chi2 / scale, n, model.parameters());
-    let scores = ModelScores {
+    // Scores are measured against the data's uncertainty (see `bic` for misfits beyond it).
+    let score = |chi2: f64, model: StretchingModel| bic(chi2, n, model.parameters());
+    let mut scores = ModelScores {
         no_rift: score(line_chi2, StretchingModel::NoRift),
         one_event: Some(score(one_chi2, StretchingModel::Uniform)),
         two_events: two_chi2.map(|c| score(c, StretchingModel::TwoEvents)),
         two_layer: two_layer_chi2.map(|c| score(c, StretchingModel::TwoLayer)),
-        misfit_scale: scale,
+        misfit_scale: 1.0,
     };
     let at_bound = |factors: &[f64]| factors.iter().any(|&f| f >= AT_BOUND);
+    // The rate check of the no-rift model: a steady trend faster than a pre-rift
+    // usually subsides needs stretching (or loading) to explain it.
+    let too_fast =
+        (no_rift.rate_m_per_myr > PRE_RIFT_RATE_LIMIT_M_PER_MYR).then_some(NO_RIFT_TOO_FAST);
     let mut tried = vec![
         (
             StretchingModel::NoRift,
             scores.no_rift,
             no_rift.rms_misfit_m,
-            None,
+            too_fast,
         ),
         (
             StretchingModel::Uniform,
@@ -356,6 +376,13 @@ pub fn propose_phases(
             rms_misfit_m,
         })
         .collect();
+    let chosen_chi2 = match model {
+        StretchingModel::NoRift => Some(line_chi2),
+        StretchingModel::Uniform => Some(one_chi2),
+        StretchingModel::TwoEvents => two_chi2,
+        StretchingModel::TwoLayer => two_layer_chi2,
+    };
+    scores.misfit_scale = misfit_scale(chosen_chi2.unwrap_or(0.0), n, model.parameters());
     let chosen = match model {
         StretchingModel::NoRift => None,
         StretchingModel::TwoEvents => two,
@@ -374,13 +401,16 @@ pub fn propose_phases(
     }
     proposal.model = model;
     proposal.alternatives = alternatives;
-    proposal.warnings = proposal_warnings(&proposal, observations, &sigmas);
+    proposal.warnings =
+        proposal_warnings(&proposal, observations, &subsidence_sigmas_m(observations));
     Ok(proposal)
 }
 
 /// A factor within this of [`super::fit::MAX_STRETCHING_FACTOR`] is at its bound.
 const AT_BOUND: f64 = super::fit::MAX_STRETCHING_FACTOR * (1.0 - 1e-6);
 const FACTOR_AT_BOUND: &str = "a stretching factor at its bound";
+const NO_RIFT_TOO_FAST: &str =
+    "subsides faster than a basin without stretching or loading usually does";
 const TWO_LAYER_NOT_AUTOMATIC: &str =
     "not chosen automatically: a uniform rift of finite duration can look depth-dependent";
 /// BIC difference that counts as positive evidence for a model (Kass & Raftery 1995: 2-6
@@ -407,6 +437,17 @@ fn proposal_warnings(
             "the best model ({}) misfits the data {:.1} times more than their water-depth ranges allow: check the tops and ranges, or treat the interpretation as doubtful",
             proposal.model.label(),
             scale.sqrt()
+        ));
+    }
+    if let Some(reason) = proposal
+        .alternatives
+        .iter()
+        .find(|a| a.model == proposal.model)
+        .and_then(|a| a.refused.as_deref())
+    {
+        warnings.push(format!(
+            "no model fits without objection; shown: {} ({reason})",
+            proposal.model.label()
         ));
     }
     for a in &proposal.alternatives {
@@ -485,16 +526,12 @@ pub fn phases_from_picks(
     let n = observations.len();
     let no_rift = line_fit(observations);
     let k = if timings.len() == 1 { 4 } else { 7 };
-    let sigmas = subsidence_sigmas_m(observations);
+    let sigmas = scoring_sigmas_m(observations);
     let fit_chi2 = uniform_chi_square(lithosphere, observations, &sigmas, &fit);
     let scale = misfit_scale(fit_chi2, n, k);
-    let fit_bic = bic(fit_chi2 / scale, n, k);
+    let fit_bic = bic(fit_chi2, n, k);
     let scores = ModelScores {
-        no_rift: bic(
-            line_chi_square(observations, &sigmas, &no_rift) / scale,
-            n,
-            2,
-        ),
+        no_rift: bic(line_chi_square(observations, &sigmas, &no_rift), n, 2),
         one_event: (k == 4).then_some(fit_bic),
         two_events: (k == 7).then_some(fit_bic),
         two_layer: None,
@@ -533,7 +570,8 @@ pub fn phases_from_picks(
     ];
     alternatives.sort_by(|a, b| a.bic.total_cmp(&b.bic));
     proposal.alternatives = alternatives;
-    proposal.warnings = proposal_warnings(&proposal, observations, &sigmas);
+    proposal.warnings =
+        proposal_warnings(&proposal, observations, &subsidence_sigmas_m(observations));
     Ok(proposal)
 }
 

@@ -50,11 +50,12 @@ pub fn subsidence_data(well_name: &str, a: &WellAnalysis) -> SubsidenceChartData
     }
 }
 
-/// Surface heat flow of the fitted model through time.
+/// Basal (mantle) heat flow of the fitted model through time: the closed form's heat
+/// flow out of a plate without radiogenic heat (docs/science.md 4.4).
 pub fn heat_flow_data(well_name: &str, a: &WellAnalysis) -> HeatFlowChartData {
     let i = a.interpretation.as_ref().ok();
     HeatFlowChartData {
-        title: format!("Surface heat flow, well {well_name}"),
+        title: format!("Basal (mantle) heat flow of the fit, well {well_name}"),
         heat_flow: i
             .map(|i| {
                 i.heat_flow_grid

@@ -445,7 +445,9 @@ async fn well_download(
                 })
                 .unwrap_or_default();
             csv(
-                &format!("Surface heat flow of the fitted model, well {name}"),
+                &format!(
+                    "Basal (mantle) heat flow of the fitted model, no radiogenic heat, well {name}"
+                ),
                 &["well", "age_ma", "heat_flow_mw_m2"],
                 rows,
             )

@@ -79,7 +79,8 @@ pub struct StretchingOut {
     pub rift_onset_ma: f64,
     pub rift_end_ma: f64,
     pub rms_misfit_m: f64,
-    /// Surface heat flow of the fitted model at every history age.
+    /// Basal (mantle) heat flow of the fitted model at every history age: the closed
+    /// form's heat flow out of a plate without radiogenic heat (see `heat_flow_basis`).
     pub heat_flow_mw_m2: Vec<HeatFlowPoint>,
     /// Extension: "proposed" by the phase search, or "team pick".
     pub origin: &'static str,
@@ -87,6 +88,35 @@ pub struct StretchingOut {
     pub rift_events: Vec<RiftEventOut>,
     /// Extension: the two-layer (crust delta, mantle beta) fit beside the uniform one.
     pub two_layer: Option<TwoLayerOut>,
+    /// Extension: what `heat_flow_mw_m2` is.
+    pub heat_flow_basis: &'static str,
+}
+
+/// How the stretching model was chosen (present whenever the well was interpreted,
+/// "no rift" included).
+#[derive(Debug, Clone, Serialize)]
+pub struct ModelChoiceOut {
+    /// The model the proposal (or the team's pick) settled on: "no-rift", "uniform",
+    /// "two-events" or "two-layer".
+    pub chosen_model: &'static str,
+    /// The fullest model's squared misfit over what the data's ranges allow (1 = within
+    /// them); scores were divided by it.
+    pub misfit_scale: f64,
+    /// Every model tried, best score first, so the closeness of the call shows.
+    pub alternatives: Vec<AlternativeOut>,
+}
+
+/// One model tried by the proposal, with its score.
+#[derive(Debug, Clone, Serialize)]
+pub struct AlternativeOut {
+    pub model: &'static str,
+    /// BIC against the data's uncertainty (lower is better).
+    pub bic: f64,
+    /// BIC less the chosen model's.
+    pub bic_above_chosen: f64,
+    pub rms_misfit_m: f64,
+    /// Why it was not chosen although it might score better, if so.
+    pub refused: Option<String>,
 }
 
 #[derive(Debug, Clone, Copy, Serialize)]
@@ -120,6 +150,9 @@ pub struct WellOut {
     pub history: Vec<HistoryOut>,
     pub phases: Vec<PhaseOut>,
     pub stretching: Option<StretchingOut>,
+    /// Extension: how the model was chosen, with the alternatives and their scores.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub model_choice: Option<ModelChoiceOut>,
     /// Extension: why there is no stretching fit, when there is none.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub fit_note: Option<String>,

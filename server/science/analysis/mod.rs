@@ -242,7 +242,16 @@ pub fn well_out(a: &WellAnalysis) -> WellOut {
     let h = &a.history;
     WellOut {
         well: h.well.clone(),
-        warnings: h.warnings.clone(),
+        warnings: h
+            .warnings
+            .iter()
+            .cloned()
+            .chain(
+                a.interpretation
+                    .iter()
+                    .flat_map(|i| i.proposal.warnings.iter().cloned()),
+            )
+            .collect(),
         history: h
             .steps
             .iter()
@@ -278,6 +287,7 @@ pub fn well_out(a: &WellAnalysis) -> WellOut {
             })
             .unwrap_or_default(),
         stretching: a.interpretation.as_ref().ok().and_then(stretching_out),
+        model_choice: a.interpretation.as_ref().ok().map(model_choice_out),
         fit_note: fit_note(a),
     }
 }
@@ -365,7 +375,41 @@ pub fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
             })
             .collect(),
         two_layer,
+        heat_flow_basis: HEAT_FLOW_BASIS,
     })
+}
+
+/// The `model_choice` object of the contract.
+pub fn model_choice_out(i: &Interpretation) -> contract::ModelChoiceOut {
+    contract::ModelChoiceOut {
+        chosen_model: model_key(i.proposal.model),
+        misfit_scale: i.proposal.scores.misfit_scale,
+        alternatives: i
+            .proposal
+            .alternatives
+            .iter()
+            .map(|a| contract::AlternativeOut {
+                model: model_key(a.model),
+                bic: a.bic,
+                bic_above_chosen: a.bic_above_best,
+                rms_misfit_m: a.rms_misfit_m,
+                refused: a.refused.clone(),
+            })
+            .collect(),
+    }
+}
+
+/// What the contract's `heat_flow_mw_m2` is.
+pub const HEAT_FLOW_BASIS: &str = "basal (mantle) heat flow of the closed-form stretching model, without radiogenic heat; the surface heat flow is higher by the crust's and sediments' heat production";
+
+/// The contract's key of a model.
+pub fn model_key(model: phases::StretchingModel) -> &'static str {
+    match model {
+        phases::StretchingModel::NoRift => "no-rift",
+        phases::StretchingModel::Uniform => "uniform",
+        phases::StretchingModel::TwoEvents => "two-events",
+        phases::StretchingModel::TwoLayer => "two-layer",
+    }
 }
 
 /// A well that could not be analysed still appears, with its reason as a warning.
@@ -376,6 +420,7 @@ pub fn failed_well_out(name: &str, error: &ScienceError) -> WellOut {
         history: Vec::new(),
         phases: Vec::new(),
         stretching: None,
+        model_choice: None,
         fit_note: None,
     }
 }

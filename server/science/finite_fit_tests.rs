@@ -1,0 +1,139 @@
+//! Finite-duration fits recover what the numerical lithosphere built: wells made at the
+//! default (fine) resolution with +-20 m scatter and +-60 m ranges, fitted at the coarse
+//! fit resolution with the timing known. Truth is the forward model's input, not a
+//! published value; the forward model itself is checked against published values in
+//! numerical_lithosphere_tests.rs.
+
+use super::*;
+use crate::Bounds;
+use crate::fit::tests::mckenzie;
+
+fn well(event: StretchingEvent) -> Vec<SubsidenceObservation> {
+    let ages: Vec<f64> = (0..=40).map(|i| 200.0 - 5.0 * i as f64).collect();
+    let history = run_plate(
+        &mckenzie(),
+        &CrustalHeatProduction::NONE,
+        &[event],
+        IsostasyConvention::McKenzie,
+        &NumericalSettings::default(),
+        &ages,
+        false,
+    )
+    .unwrap();
+    history
+        .states
+        .iter()
+        .enumerate()
+        .map(|(i, s)| {
+            let y = 50.0 + s.subsidence_m + 20.0 * (((i * 37) % 7) as f64 / 3.0 - 1.0);
+            SubsidenceObservation {
+                age_ma: s.age_ma,
+                tectonic_subsidence: Bounds {
+                    min: y - 60.0,
+                    best: y,
+                    max: y + 60.0,
+                },
+            }
+        })
+        .collect()
+}
+
+#[test]
+fn a_forty_million_year_uniform_rift_is_recovered() {
+    let l = mckenzie();
+    let truth = StretchingEvent::uniform(180.0, 140.0, 2.0);
+    let fit = fit_finite_rift(&l, &well(truth), 180.0, 140.0, false).unwrap();
+    assert!((fit.mantle_factor - 2.0).abs() < 0.05 * 2.0, "{fit:?}");
+    assert!((fit.pre_rift_subsidence_m - 50.0).abs() < 15.0, "{fit:?}");
+    // The scatter is +-20 m: the fit is as good as the data.
+    assert!(fit.rms_misfit_m < 20.0, "{fit:?}");
+}
+
+#[test]
+fn a_depth_dependent_rift_is_told_apart_from_a_uniform_one() {
+    let l = mckenzie();
+    let truth = StretchingEvent {
+        onset_ma: 180.0,
+        end_ma: 160.0,
+        crust_factor: 1.5,
+        mantle_factor: 3.0,
+    };
+    let data = well(truth);
+    let two_layer = fit_finite_rift(&l, &data, 180.0, 160.0, true).unwrap();
+    assert!(
+        (two_layer.crust_factor - 1.5).abs() < 0.05 * 1.5,
+        "{two_layer:?}"
+    );
+    assert!(
+        (two_layer.mantle_factor - 3.0).abs() < 0.05 * 3.0,
+        "{two_layer:?}"
+    );
+    let uniform = fit_finite_rift(&l, &data, 180.0, 160.0, false).unwrap();
+    assert!(
+        uniform.chi_square > 4.0 * two_layer.chi_square,
+        "uniform {uniform:?} against two-layer {two_layer:?}"
+    );
+}
+
+#[test]
+fn a_uniform_rift_does_not_look_depth_dependent() {
+    // The case the closed forms get wrong (docs/science.md 8.3): beta 1.5 over 20 Myr.
+    let l = mckenzie();
+    let data = well(StretchingEvent::uniform(180.0, 160.0, 1.5));
+    let two_layer = fit_finite_rift(&l, &data, 180.0, 160.0, true).unwrap();
+    let uniform = fit_finite_rift(&l, &data, 180.0, 160.0, false).unwrap();
+    assert!(
+        (uniform.mantle_factor - 1.5).abs() < 0.05 * 1.5,
+        "{uniform:?}"
+    );
+    // One more parameter buys almost nothing: less than the BIC penalty ln(41) = 3.7.
+    assert!(
+        uniform.chi_square - two_layer.chi_square < (41f64).ln(),
+        "uniform {uniform:?} against two-layer {two_layer:?}"
+    );
+}
+
+#[test]
+fn the_fit_resolution_is_close_to_the_default() {
+    let l = mckenzie();
+    let event = StretchingEvent {
+        onset_ma: 180.0,
+        end_ma: 150.0,
+        crust_factor: 1.8,
+        mantle_factor: 2.6,
+    };
+    let ages: Vec<f64> = (0..=36).map(|i| 180.0 - 5.0 * i as f64).collect();
+    let go = |settings: &NumericalSettings| {
+        run_plate(
+            &l,
+            &CrustalHeatProduction::NONE,
+            &[event],
+            IsostasyConvention::McKenzie,
+            settings,
+            &ages,
+            false,
+        )
+        .unwrap()
+        .states
+    };
+    let (fine, coarse) = (go(&NumericalSettings::default()), go(&FIT_RESOLUTION));
+    for (f, c) in fine.iter().zip(&coarse) {
+        assert!(
+            (f.subsidence_m - c.subsidence_m).abs() < 2.0,
+            "at {} Ma: {} against {}",
+            f.age_ma,
+            f.subsidence_m,
+            c.subsidence_m
+        );
+    }
+}
+
+#[test]
+fn a_timing_outside_the_well_is_refused() {
+    let l = mckenzie();
+    let data = well(StretchingEvent::uniform(180.0, 160.0, 1.5));
+    let e = fit_finite_rift(&l, &data, 300.0, 160.0, false).unwrap_err();
+    assert!(e.to_string().contains("within the well"), "{e}");
+    let e = fit_finite_rift(&l, &data, 150.0, 160.0, false).unwrap_err();
+    assert!(e.to_string().contains("older than its end"), "{e}");
+}
