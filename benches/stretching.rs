@@ -68,6 +68,7 @@ fn stretching(c: &mut Criterion) {
                     uniform,
                     proposal.two_layer.as_ref(),
                     MonteCarloSettings::default(),
+                    proposal.scores.misfit_scale,
                 )
                 .unwrap()
             })

@@ -195,6 +195,7 @@ fn with_recorded_pwd_off_the_truth_the_true_beta_lies_in_the_range() {
         &fit,
         p.two_layer.as_ref(),
         MonteCarloSettings::default(),
+        p.scores.misfit_scale,
     )
     .unwrap();
     assert!(

@@ -90,6 +90,22 @@ pub struct StretchingOut {
     pub two_layer: Option<TwoLayerOut>,
     /// Extension: what `heat_flow_mw_m2` is.
     pub heat_flow_basis: &'static str,
+    /// Extension: the sources of `beta_min`..`beta_max` (the combined range).
+    pub beta_range: Option<BetaRangeOut>,
+}
+
+/// What the uniform beta's range is made of: the water-depth ranges (curve shifts and
+/// Monte-Carlo draws), the lithosphere-parameter draws (5-95 %), and the factor both
+/// half-widths were widened by for a misfit beyond the ranges.
+#[derive(Debug, Clone, Serialize)]
+pub struct BetaRangeOut {
+    pub water_depth_min: f64,
+    pub water_depth_max: f64,
+    pub lithosphere_parameters_min: f64,
+    pub lithosphere_parameters_max: f64,
+    pub misfit_inflation: f64,
+    /// "water depth" or "lithosphere parameters".
+    pub dominant: &'static str,
 }
 
 /// How the stretching model was chosen (present whenever the well was interpreted,

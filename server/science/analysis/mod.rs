@@ -99,6 +99,7 @@ pub fn interpret(
             fit,
             proposal.two_layer.as_ref(),
             MONTE_CARLO,
+            proposal.scores.misfit_scale,
         )?),
         None => None,
     };
@@ -308,7 +309,7 @@ pub fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
     let fit = i.proposal.uniform.as_ref()?;
     let first = fit.events.first()?;
     let last = fit.events.last()?;
-    let spread = i.uncertainty.as_ref().map(|u| u.beta);
+    let combined = i.uncertainty.as_ref();
     let beta = fit.cumulative_beta();
     let two_layer = i.proposal.two_layer.as_ref().map(|t| {
         let u = i.uncertainty.as_ref();
@@ -348,8 +349,8 @@ pub fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
     Some(StretchingOut {
         model: "uniform",
         beta,
-        beta_min: spread.map(|s| s.min()).unwrap_or(beta),
-        beta_max: spread.map(|s| s.max()).unwrap_or(beta),
+        beta_min: combined.map(|u| u.combined_min).unwrap_or(beta),
+        beta_max: combined.map(|u| u.combined_max).unwrap_or(beta),
         rift_onset_ma: first.rift_onset_ma,
         rift_end_ma: last.rift_end_ma,
         rms_misfit_m: fit.rms_misfit_m,
@@ -376,6 +377,14 @@ pub fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
             .collect(),
         two_layer,
         heat_flow_basis: HEAT_FLOW_BASIS,
+        beta_range: combined.map(|u| contract::BetaRangeOut {
+            water_depth_min: u.beta.min(),
+            water_depth_max: u.beta.max(),
+            lithosphere_parameters_min: u.parameter_beta.p05,
+            lithosphere_parameters_max: u.parameter_beta.p95,
+            misfit_inflation: u.misfit_inflation,
+            dominant: u.dominant.label(),
+        }),
     })
 }
 
