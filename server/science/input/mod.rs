@@ -66,8 +66,8 @@
 //! | column | meaning |
 //! |---|---|
 //! | `well` | well name (required; each well once) |
-//! | `rift_onset_ma` | rift onset, Ma (required, not negative) |
-//! | `rift_end_ma` | rift end, Ma (required, not negative, younger than the onset) |
+//! | `rift_onset_ma` | rift onset, Ma (required, not negative, at most 4,600: the age of the Earth) |
+//! | `rift_end_ma` | rift end, Ma (required, as the onset, and younger than it) |
 //!
 //! ## Example tops file
 //!
