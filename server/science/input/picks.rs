@@ -14,6 +14,9 @@ pub struct RiftPick {
     pub well: String,
     pub rift_onset_ma: f64,
     pub rift_end_ma: f64,
+    /// The line of the file the pick was read from, for problems found later (a
+    /// well that is not in the tops file).
+    pub line: usize,
 }
 
 /// Read a picks file: `well`, `rift_onset_ma`, `rift_end_ma`, one row per well;
@@ -75,6 +78,7 @@ pub fn parse_picks(bytes: &[u8]) -> Result<Vec<RiftPick>, Vec<InputProblem>> {
                 well: name.to_string(),
                 rift_onset_ma,
                 rift_end_ma,
+                line: row.line,
             });
         }
     }
@@ -96,12 +100,14 @@ mod tests {
                 RiftPick {
                     well: "Kestrel-1".into(),
                     rift_onset_ma: 165.5,
-                    rift_end_ma: 140.0
+                    rift_end_ma: 140.0,
+                    line: 2,
                 },
                 RiftPick {
                     well: "Plover-2".into(),
                     rift_onset_ma: 12.0,
-                    rift_end_ma: 0.0
+                    rift_end_ma: 0.0,
+                    line: 3,
                 },
             ]
         );
