@@ -97,8 +97,8 @@ fn cases() -> Vec<Case> {
 /// What is wrong with one answer, or `None` when it is a proper refusal.
 type Verdict = Option<String>;
 
-/// A 4xx upload answer carrying the case's problem: the same line and (when given)
-/// column, and a reason containing the fragment.
+/// A 4xx upload answer carrying the case's problem first: the same line and column
+/// (none when expected.csv gives none), and a reason containing the fragment.
 fn check_api_answer(case: &Case, answer: &Answer) -> Verdict {
     if !answer.status.is_client_error() {
         return Some(format!(
@@ -133,8 +133,19 @@ fn check_api_answer(case: &Case, answer: &Answer) -> Verdict {
                 .as_str()
                 .is_some_and(|r| r.contains(&case.reason))
     };
-    if problems.iter().any(matches) {
-        None
+    // Each file is wrong in one way: any further problem is the same fault on
+    // another row, never a follow-on complaint that would mislead the user.
+    let same_fault = |p: &Value| {
+        p["column"].as_str() == case.column.as_deref()
+            && p["reason"]
+                .as_str()
+                .is_some_and(|r| r.contains(&case.reason))
+    };
+    if problems.first().is_some_and(matches) {
+        match problems.iter().find(|p| !same_fault(p)) {
+            Some(other) => Some(format!("a further problem: {other}")),
+            None => None,
+        }
     } else {
         Some(format!(
             "no problem at line {:?}, column {:?} with reason containing {:?}; problems: {}",
@@ -205,6 +216,14 @@ fn check_command(case: &Case, out: &Output) -> Verdict {
     }
     if !stderr.contains(&case.reason) {
         wrong.push(format!("stderr lacks {:?}", case.reason));
+    }
+    // The problems are listed one a line, indented; each must be this file's fault.
+    if let Some(other) = stderr
+        .lines()
+        .filter(|l| l.starts_with("  "))
+        .find(|l| !l.contains(&case.reason))
+    {
+        wrong.push(format!("a further problem: {}", other.trim()));
     }
     if let Some(location) = case.printed_location()
         && !stderr.contains(&format!("{} {location}:", case.file))
