@@ -13,10 +13,10 @@
 //! at most 64 MiB, with a header row. Header names are matched in any case and
 //! columns may come in any order; spaces or hyphens in a header read as `_`
 //! (`Depth M` is `depth_m`). Cells are trimmed; blank lines are skipped; every row
-//! must have as many fields as the header (quote a cell that holds a comma, and close every quote: one left open is refused at
-//! its line).
-//! Numbers use a decimal point (`1250.5`, `1.2e3`). Line numbers count the header
-//! as line 1. A [`ColumnMapping`] names our column for any other header
+//! must have as many fields as the header (quote a cell that holds a comma, and
+//! close every quote: one left open is refused at its line). Numbers use a
+//! decimal point (`1250.5`, `1.2e3`). Line numbers count the header as line 1. A
+//! [`ColumnMapping`] names our column for any other header
 //! (`Well Name` → `well`, `TVDSS` → `depth_ft`, or `""` to ignore a header).
 //!
 //! ## Tops file
