@@ -142,10 +142,10 @@ fn check_api_answer(case: &Case, answer: &Answer) -> Verdict {
                 .is_some_and(|r| r.contains(&case.reason))
     };
     if problems.first().is_some_and(matches) {
-        match problems.iter().find(|p| !same_fault(p)) {
-            Some(other) => Some(format!("a further problem: {other}")),
-            None => None,
-        }
+        problems
+            .iter()
+            .find(|p| !same_fault(p))
+            .map(|other| format!("a further problem: {other}"))
     } else {
         Some(format!(
             "no problem at line {:?}, column {:?} with reason containing {:?}; problems: {}",

@@ -99,9 +99,8 @@ pub(crate) fn read_table(bytes: &[u8], problems: &mut Problems) -> Option<Table>
                 None,
                 "has a quote left open: the quoted cell that starts here is never closed, so the rest of the file reads as one cell; close the quote or remove it",
             );
-            if header.is_none() {
-                return None;
-            }
+            // Left open in the header: nothing of the file can be read.
+            header.as_ref()?;
             rows.push(Row {
                 line,
                 cells: record,
