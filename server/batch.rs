@@ -227,16 +227,23 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
         Some(t) if problems.is_empty() => t,
         _ => return Err(problems.into()),
     };
-    if let Some(unknown) = picks
+    let picks_file = args.picks.as_deref().map(file_name).unwrap_or_default();
+    let unknown: Vec<InputProblem> = picks
         .iter()
-        .find(|p| !tops.wells.iter().any(|w| w.name == p.well))
-    {
-        let picks_file = args.picks.as_deref().map(file_name).unwrap_or_default();
-        return Err(BatchError(format!(
-            "{picks_file}, column well: well '{}' is not in the tops file {}",
-            unknown.well,
-            file_name(&args.tops)
-        )));
+        .filter(|p| !tops.wells.iter().any(|w| w.name == p.well))
+        .map(|p| InputProblem {
+            file: picks_file.clone(),
+            line: Some(p.line),
+            column: Some("well".into()),
+            reason: format!(
+                "well \"{}\" is not in the tops file {}",
+                p.well,
+                file_name(&args.tops)
+            ),
+        })
+        .collect();
+    if !unknown.is_empty() {
+        return Err(unknown.into());
     }
 
     let inputs = StudyInputs {

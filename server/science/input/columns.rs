@@ -333,6 +333,8 @@ impl Columns {
     fn check_rules(&mut self, header_line: usize, problems: &mut Problems) {
         let mut missing = Vec::new();
         let have = |name: &str| self.field(name).index.is_some();
+        let header = self.headers.join(", ");
+        let hint = comma_hint(&header);
         for alternatives in self.schema.required {
             if alternatives.iter().any(|alt| alt.iter().all(|c| have(c))) {
                 continue;
@@ -342,16 +344,31 @@ impl Columns {
                 .map(|alt| alt.join(" + "))
                 .collect::<Vec<_>>()
                 .join(" or ");
-            let header = self.headers.join(", ");
+            // A file split on another separator misses every column for one reason:
+            // say it once, below.
+            if hint.is_empty() {
+                problems.at(
+                    header_line,
+                    None,
+                    format!("the required column {wanted} is missing; the header has: {header}"),
+                );
+            }
+            missing.push(wanted);
+        }
+        if !hint.is_empty() && !missing.is_empty() {
+            let list = missing.join(", ");
+            let (noun, verb) = if missing.len() == 1 {
+                ("column", "is")
+            } else {
+                ("columns", "are")
+            };
             problems.at(
                 header_line,
                 None,
                 format!(
-                    "the required column {wanted} is missing; the header has: {header}{}",
-                    comma_hint(&header)
+                    "the required {noun} {list} {verb} missing; the header has: {header}{hint}"
                 ),
             );
-            missing.push(wanted);
         }
         for &(a, b) in self.schema.partners {
             for (one, other) in [(a, b), (b, a)] {
@@ -629,6 +646,26 @@ mod tests {
             &mut problems,
         );
         assert!(problems.finish()[0].reason.contains("comma-separated"));
+    }
+
+    #[test]
+    fn a_semicolon_separated_file_is_one_problem_not_one_per_column() {
+        let mut problems = Problems::new("tops.csv");
+        Columns::resolve(
+            FileKind::Tops,
+            &headers(&["well;horizon;depth_m;age_ma;lithology"]),
+            1,
+            &ColumnMapping::new(),
+            &mut problems,
+        );
+        let found = problems.finish();
+        assert_eq!(found.len(), 1, "{found:#?}");
+        let reason = &found[0].reason;
+        assert!(
+            reason.starts_with("the required columns well, horizon, depth_m or depth_ft, age_ma"),
+            "{reason}"
+        );
+        assert!(reason.ends_with("save it comma-separated)"), "{reason}");
     }
 
     #[test]

@@ -13,9 +13,10 @@
 //! at most 64 MiB, with a header row. Header names are matched in any case and
 //! columns may come in any order; spaces or hyphens in a header read as `_`
 //! (`Depth M` is `depth_m`). Cells are trimmed; blank lines are skipped; every row
-//! must have as many fields as the header (quote a cell that holds a comma).
-//! Numbers use a decimal point (`1250.5`, `1.2e3`). Line numbers count the header
-//! as line 1. A [`ColumnMapping`] names our column for any other header
+//! must have as many fields as the header (quote a cell that holds a comma, and
+//! close every quote: one left open is refused at its line). Numbers use a
+//! decimal point (`1250.5`, `1.2e3`). Line numbers count the header as line 1. A
+//! [`ColumnMapping`] names our column for any other header
 //! (`Well Name` → `well`, `TVDSS` → `depth_ft`, or `""` to ignore a header).
 //!
 //! ## Tops file
@@ -66,8 +67,8 @@
 //! | column | meaning |
 //! |---|---|
 //! | `well` | well name (required; each well once) |
-//! | `rift_onset_ma` | rift onset, Ma (required, not negative) |
-//! | `rift_end_ma` | rift end, Ma (required, not negative, younger than the onset) |
+//! | `rift_onset_ma` | rift onset, Ma (required, not negative, at most 4,600: the age of the Earth) |
+//! | `rift_end_ma` | rift end, Ma (required, as the onset, and younger than it) |
 //!
 //! ## Example tops file
 //!

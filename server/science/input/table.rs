@@ -68,19 +68,46 @@ pub(crate) fn read_table(bytes: &[u8], problems: &mut Problems) -> Option<Table>
     let mut header: Option<(usize, StringRecord)> = None;
     let mut rows = Vec::new();
     let before = problems.count();
-    for result in reader.records() {
-        let record = match result {
-            Ok(record) => record,
+    let open_quote = unclosed_quote(text.as_bytes());
+    loop {
+        let mut record = StringRecord::new();
+        match reader.read_record(&mut record) {
+            Ok(true) => {}
+            Ok(false) => break,
             Err(e) => {
                 let line = lines.line_at(e.position().map_or(0, |p| p.byte()));
                 problems.at(line, None, format!("cannot be read as CSV: {e}"));
                 continue;
             }
-        };
+        }
         if record.iter().all(str::is_empty) {
             continue;
         }
-        let line = lines.line_at(record.position().map_or(0, |p| p.byte()));
+        let start = record.position().map_or(0, |p| p.byte());
+        let line = lines.line_at(start);
+        // The quote left open is in the last record, which runs to the end of the file.
+        if let Some(quote) = open_quote
+            && start <= quote as u64
+            && reader.position().byte() >= text.len() as u64
+        {
+            let quote_line = 1 + text.as_bytes()[..quote]
+                .iter()
+                .filter(|&&b| b == b'\n')
+                .count();
+            problems.at(
+                quote_line,
+                None,
+                "has a quote left open: the quoted cell that starts here is never closed, so the rest of the file reads as one cell; close the quote or remove it",
+            );
+            // Left open in the header: nothing of the file can be read.
+            header.as_ref()?;
+            rows.push(Row {
+                line,
+                cells: record,
+                complete: false,
+            });
+            continue;
+        }
         match &header {
             None => header = Some((line, record)),
             Some((_, names)) => {
@@ -116,6 +143,38 @@ pub(crate) fn read_table(bytes: &[u8], problems: &mut Problems) -> Option<Table>
         headers: names.iter().map(str::to_string).collect(),
         rows,
     })
+}
+
+/// The byte offset of a quote that opens a cell and is never closed, so that the
+/// rest of the file reads as one cell. Quotes are read as the CSV reader reads
+/// them: one opens a cell only as its first character, and inside a quoted cell a
+/// doubled quote stands for one; elsewhere a quote is an ordinary character
+/// (`12" casing`).
+fn unclosed_quote(text: &[u8]) -> Option<usize> {
+    let mut open = None;
+    let mut field_start = true;
+    let mut i = 0;
+    while i < text.len() {
+        let b = text[i];
+        if open.is_some() {
+            if b == b'"' {
+                if text.get(i + 1) == Some(&b'"') {
+                    i += 1;
+                } else {
+                    open = None;
+                }
+            }
+        } else if b == b',' || b == b'\n' || b == b'\r' {
+            field_start = true;
+        } else {
+            if b == b'"' && field_start {
+                open = Some(i);
+            }
+            field_start = false;
+        }
+        i += 1;
+    }
+    open
 }
 
 /// Line numbers from the byte offsets the CSV reader gives. (Its own line count
@@ -286,6 +345,30 @@ mod tests {
         let t = read(b"well,note\nA-1,\"two\nlines\"\nB-2,x\n").unwrap();
         assert_eq!(t.rows[0].cell(Some(1)), "two\nlines");
         assert_eq!(t.rows[1].line, 4);
+    }
+
+    #[test]
+    fn a_quote_left_open_is_reported_where_it_opens() {
+        // The open quote swallows the rest of the file into one cell; here the row
+        // even has the header's field count, so only the quote can explain it.
+        let p = read(b"age_ma,sea_level_m\n0,0\n5,\"1\n10,5\n20,6\n").unwrap_err();
+        assert_eq!(p.len(), 1, "{p:#?}");
+        assert_eq!((p[0].line, p[0].column.as_deref()), (Some(3), None));
+        assert!(p[0].reason.starts_with("has a quote left open"), "{}", p[0]);
+        // In the header, nothing can be read at all.
+        let p = read(b"well,\"age_ma\nA-1,5\n").unwrap_err();
+        assert_eq!(p.len(), 1, "{p:#?}");
+        assert_eq!(p[0].line, Some(1));
+    }
+
+    #[test]
+    fn quotes_that_close_or_stand_inside_a_cell_are_not_left_open() {
+        let t = read(b"well,note\nA-1,\"say \"\"hi\"\"\"\nB-2,12\" casing\nC-3,\"x\"\n").unwrap();
+        assert_eq!(t.rows.len(), 3);
+        assert_eq!(t.rows[0].cell(Some(1)), "say \"hi\"");
+        assert_eq!(t.rows[1].cell(Some(1)), "12\" casing");
+        assert_eq!(unclosed_quote(b"a,\"b\"\"\n"), Some(2));
+        assert_eq!(unclosed_quote(b"a,b\"\n"), None);
     }
 
     #[test]

@@ -269,7 +269,8 @@ fn read_row<'t>(
         depth_m,
         age_ma,
         lithology,
-        lithology_given: !lithology_text.is_empty(),
+        // An over-long cell was given (and is reported as such), not left empty.
+        lithology_given: !f.lithology.text(row).is_empty(),
         water_depth,
         erosion,
         sound: problems.count() == before,

@@ -533,3 +533,18 @@ fn overlong_names_are_refused() {
         "the horizon name has 101 characters; at most 100 are accepted"
     );
 }
+
+#[test]
+fn an_overlong_lithology_is_refused_once_not_also_as_missing() {
+    let long = "shale".repeat(61);
+    let rows = [
+        format!("Fictive-1,Top,100,0,{long},,,,"),
+        "Fictive-1,Base,200,10,,,,,".to_string(),
+    ];
+    let (line, column, reason) = only_problem(&rows.iter().map(String::as_str).collect::<Vec<_>>());
+    assert_eq!((line, column.as_str()), (2, "lithology"));
+    assert!(
+        reason.starts_with("the lithology has 305 characters"),
+        "{reason}"
+    );
+}
