@@ -41,7 +41,8 @@ pub struct AnalyzeArgs {
     /// field may be left out; lithologies are added to or replace the published defaults by name).
     #[arg(long)]
     pub params: Option<PathBuf>,
-    /// The team's rift picks (CSV: well, rift_onset_ma, rift_end_ma), used instead of the proposal.
+    /// The team's rift picks (CSV: well, rift_onset_ma, rift_end_ma, optional event 1 or 2),
+    /// used instead of the proposal.
     #[arg(long)]
     pub picks: Option<PathBuf>,
     /// Only decompact and backstrip: leave `phases` empty and `stretching` null (faster).
@@ -251,12 +252,7 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
         catalogue,
         sea_level,
     };
-    let timing = |well: &str| {
-        picks
-            .iter()
-            .find(|p| p.well == well)
-            .map(|p| vec![(p.rift_onset_ma, p.rift_end_ma)])
-    };
+    let timing = |well: &str| input::timings_of(&picks, well);
     let run = Run {
         wells: &tops.wells,
         inputs: &inputs,

@@ -161,7 +161,7 @@ static SEA_LEVEL: Schema = Schema {
 };
 
 static PICKS: Schema = Schema {
-    columns: &["well", "rift_onset_ma", "rift_end_ma"],
+    columns: &["well", "rift_onset_ma", "rift_end_ma", "event"],
     required: &[&[&["well"]], &[&["rift_onset_ma"]], &[&["rift_end_ma"]]],
     partners: &[],
     exclusive: &[],

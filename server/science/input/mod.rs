@@ -66,9 +66,10 @@
 //!
 //! | column | meaning |
 //! |---|---|
-//! | `well` | well name (required; each well once) |
+//! | `well` | well name (required; each well once per event) |
 //! | `rift_onset_ma` | rift onset, Ma (required, not negative, at most 4,600: the age of the Earth) |
 //! | `rift_end_ma` | rift end, Ma (required, as the onset, and younger than it) |
+//! | `event` | 1 (the older rift event, the default) or 2; event 2 needs an event 1 and starts when or after it ends |
 //!
 //! ## Example tops file
 //!
@@ -106,7 +107,7 @@ pub use bounds::{
 pub use columns::{ColumnMapping, DepthUnit, FileKind, MatchedColumn};
 pub use guess::guess_mapping;
 pub use lithology::MIX_SUM_TOLERANCE_PERCENT;
-pub use picks::{RiftPick, parse_picks};
+pub use picks::{RiftPick, parse_picks, timings_of};
 pub use preview::{PREVIEW_ROWS, Preview, PreviewOptions, PreviewRow, preview};
 pub use problems::{InputProblem, MAX_PROBLEMS, name_file};
 pub use sea_level::parse_sea_level;
