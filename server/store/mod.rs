@@ -2,7 +2,8 @@
 //!
 //! Each function takes an executor (`impl SqliteExecutor`) for a single statement,
 //! or `&mut SqliteConnection` when it runs several, so callers can compose them in
-//! one transaction (`let mut tx = pool.begin().await?; f(&mut tx).await?;`).
+//! one transaction (`let mut tx = store::write_transaction(&pool).await?; f(&mut tx).await?;`).
+//! Every transaction that writes starts with [`write_transaction`].
 
 pub mod activity;
 pub mod comments;
@@ -18,6 +19,7 @@ pub mod wells;
 use sqlx::sqlite::{
     SqliteConnectOptions, SqliteJournalMode, SqlitePool, SqlitePoolOptions, SqliteSynchronous,
 };
+use sqlx::{Sqlite, Transaction};
 use std::path::Path;
 use std::str::FromStr;
 use std::time::Duration;
@@ -40,6 +42,18 @@ pub async fn open(path: &Path) -> Result<SqlitePool, sqlx::Error> {
         .await?;
     MIGRATOR.run(&pool).await?;
     Ok(pool)
+}
+
+/// Start a transaction that holds the write lock from its first statement
+/// (`BEGIN IMMEDIATE`). Every writing transaction starts here.
+///
+/// With SQLite's default deferred start a transaction first reads under a shared
+/// snapshot and asks for the write lock only at its first write; if another writer
+/// committed in between, that upgrade fails at once with "database is locked" and
+/// the busy timeout cannot help. Taking the lock first makes a second writer wait
+/// (up to the busy timeout set in [`open`]) and then run, so concurrent saves queue.
+pub async fn write_transaction(pool: &SqlitePool) -> StoreResult<Transaction<'static, Sqlite>> {
+    pool.begin_with("BEGIN IMMEDIATE").await
 }
 
 /// A human-readable error for the database layer, for logs. Users never see it.
