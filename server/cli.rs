@@ -1,4 +1,5 @@
-//! The command line: `sagline [serve]`, `sagline analyze`, `sagline section` and `sagline user add`.
+//! The command line: `sagline [serve]`, `sagline analyze`, `sagline section`, `sagline user add`
+//! and `sagline backup`.
 
 use crate::auth::Role;
 use crate::services::accounts;
@@ -29,6 +30,8 @@ pub enum Command {
     Section(crate::section_batch::SectionArgs),
     /// Manage the accounts of a database.
     User(UserArgs),
+    /// Copy a database to a file, consistently, also while the server is using it.
+    Backup(BackupArgs),
     /// Rebuild the demo study's CSV files from its basin description (seeded, repeatable).
     BuildDemo(BuildDemoArgs),
 }
@@ -41,6 +44,19 @@ pub struct BuildDemoArgs {
     /// Where tops.csv, wells.csv and sea_level.csv are written.
     #[arg(long, default_value = "demo-db")]
     pub out: PathBuf,
+}
+
+#[derive(Debug, Clone, Args)]
+pub struct BackupArgs {
+    /// The database to copy (the server's --db). It is only read: never created or upgraded.
+    #[arg(long, default_value = "sagline.db")]
+    pub db: PathBuf,
+    /// The file the copy is written to. It must not exist, unless --force is given.
+    #[arg(long)]
+    pub out: PathBuf,
+    /// Replace --out FILE if it exists.
+    #[arg(long)]
+    pub force: bool,
 }
 
 #[derive(Debug, Args)]
@@ -109,6 +125,7 @@ pub fn main() -> ExitCode {
         Some(Command::User(UserArgs {
             action: UserAction::Add(args),
         })) => user_add(&args),
+        Some(Command::Backup(args)) => backup(&args),
         None => serve_blocking(ServeArgs::default()),
     }
 }
@@ -187,6 +204,31 @@ fn user_add(args: &UserAddArgs) -> ExitCode {
         }
         Err(e) => {
             eprintln!("error: {e:#}");
+            ExitCode::FAILURE
+        }
+    }
+}
+
+/// `sagline backup`: the copy is whole or not written at all.
+fn backup(args: &BackupArgs) -> ExitCode {
+    let runtime = match runtime() {
+        Ok(rt) => rt,
+        Err(code) => return code,
+    };
+    match runtime.block_on(crate::services::backup::backup(
+        &args.db, &args.out, args.force,
+    )) {
+        Ok(made) => {
+            println!(
+                "Backed up {} to {} ({} bytes).",
+                args.db.display(),
+                made.path.display(),
+                made.bytes
+            );
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!("error: {e}");
             ExitCode::FAILURE
         }
     }

@@ -6,6 +6,7 @@
 //! Every transaction that writes starts with [`write_transaction`].
 
 pub mod activity;
+pub mod backup;
 pub mod comments;
 pub mod lithologies;
 pub mod picks;
