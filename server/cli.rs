@@ -79,7 +79,8 @@ pub struct UserAddArgs {
     /// comments) or admin (also users, studies, parameters, catalogue, deletes).
     #[arg(long, value_parser = parse_role)]
     pub role: Role,
-    /// The study database (SQLite); it must exist (start the server once to create it).
+    /// The study database (SQLite); it must exist (start the server once to create it:
+    /// `sagline serve` for sagline.db, `sagline serve --db PATH --create` for another).
     #[arg(long, default_value = "sagline.db")]
     pub db: PathBuf,
     /// Read the password from the first line of standard input instead of generating one.
@@ -97,19 +98,42 @@ pub struct ServeArgs {
     /// 0.0.0.0:8080 to let the office network in.
     #[arg(long, default_value = "127.0.0.1:8080")]
     pub bind: SocketAddr,
-    /// The study database (SQLite). Created, holding the demo study, if it does not exist.
-    #[arg(long, default_value = "sagline.db")]
-    pub db: PathBuf,
-    /// Create a new database without the demo study.
+    /// The study database (SQLite) [default: sagline.db, created holding the demo study
+    /// if it does not exist]. A database named here must exist, unless --create is given.
+    #[arg(long)]
+    pub db: Option<PathBuf>,
+    /// Create the --db database if it does not exist (holding the demo study unless --empty).
+    #[arg(long)]
+    pub create: bool,
+    /// A new database starts without the demo study.
     #[arg(long)]
     pub empty: bool,
+}
+
+impl ServeArgs {
+    /// The database used when no --db is given; the only one created without --create.
+    pub const DEFAULT_DB: &str = "sagline.db";
+
+    /// The database to serve.
+    pub fn db_path(&self) -> PathBuf {
+        self.db
+            .clone()
+            .unwrap_or_else(|| PathBuf::from(Self::DEFAULT_DB))
+    }
+
+    /// Whether a missing database may be created: for the default path, or when asked
+    /// with --create, so a mistyped --db never silently starts a new database.
+    pub fn may_create(&self) -> bool {
+        self.db.is_none() || self.create
+    }
 }
 
 impl Default for ServeArgs {
     fn default() -> Self {
         ServeArgs {
             bind: "127.0.0.1:8080".parse().expect("a valid default address"),
-            db: PathBuf::from("sagline.db"),
+            db: None,
+            create: false,
             empty: false,
         }
     }
@@ -157,7 +181,7 @@ fn serve_blocking(args: ServeArgs) -> ExitCode {
 fn user_add(args: &UserAddArgs) -> ExitCode {
     if !args.db.exists() {
         eprintln!(
-            "error: there is no database at {}; start the server once to create it, or give --db PATH",
+            "error: there is no database at {}; start the server once to create it (`sagline serve --db PATH --create`), or give --db PATH",
             args.db.display()
         );
         return ExitCode::FAILURE;

@@ -31,8 +31,13 @@ pub static MIGRATOR: sqlx::migrate::Migrator = sqlx::migrate!("./migrations");
 /// Open (creating if missing) the SQLite database at `path` with WAL, foreign keys and
 /// a busy timeout, and bring its schema up to date.
 pub async fn open(path: &Path) -> Result<SqlitePool, sqlx::Error> {
+    open_or_create(path, true).await
+}
+
+/// [`open`], creating a missing file only when `create` is true (else the open fails).
+pub async fn open_or_create(path: &Path, create: bool) -> Result<SqlitePool, sqlx::Error> {
     let options = SqliteConnectOptions::from_str(&format!("sqlite://{}", path.display()))?
-        .create_if_missing(true)
+        .create_if_missing(create)
         .journal_mode(SqliteJournalMode::Wal)
         .synchronous(SqliteSynchronous::Normal)
         .foreign_keys(true)
