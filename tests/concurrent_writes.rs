@@ -47,7 +47,7 @@ fn big_tops(prefix: &str, wells: usize) -> String {
 /// JSON; panics on any answer other than 200 or 409.
 async fn save_until_acknowledged(agent: &Agent, path: &str, task: usize) -> Value {
     // Two rift ends at surface ages of the trough well (tests/common/rift.rs).
-    let end = if task % 2 == 0 { 66.0 } else { 56.0 };
+    let end = if task.is_multiple_of(2) { 66.0 } else { 56.0 };
     let mut version = 0;
     for _ in 0..MAX_TRIES {
         let body = json!({ "rift_onset_ma": 165.3, "rift_end_ma": end, "model": "uniform", "state": "draft", "version": version });
@@ -86,11 +86,19 @@ async fn uploads_during_pick_saves_and_comments_all_succeed_and_nothing_acknowle
         )
     };
     let picks = join_all((0..PICK_TASKS).map(|task| {
-        let agent = if task % 2 == 0 { &*app } else { &interpreter };
+        let agent = if task.is_multiple_of(2) {
+            &*app
+        } else {
+            &interpreter
+        };
         save_until_acknowledged(agent, &pick_path, task)
     }));
     let comments = join_all((0..COMMENT_TASKS).map(|task| {
-        let agent = if task % 2 == 0 { &*app } else { &interpreter };
+        let agent = if task.is_multiple_of(2) {
+            &*app
+        } else {
+            &interpreter
+        };
         let path = comment_path.clone();
         async move {
             let body = format!("busy-day note {task}");
