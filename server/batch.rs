@@ -477,11 +477,11 @@ fn write_output(
         OutputFormat::Csv => {
             let fail = |e: csv::Error| BatchError(format!("cannot write CSV: {e}"));
             let mut w = csv::Writer::from_writer(&mut *out);
-            w.write_record(analysis::CSV_HEADER).map_err(fail)?;
+            crate::csv_cells::write_row(&mut w, analysis::CSV_HEADER).map_err(fail)?;
             run.stream(tick, |wells| {
                 for well in wells {
                     for row in analysis::csv_rows(&well) {
-                        w.write_record(&row).map_err(fail)?;
+                        crate::csv_cells::write_row(&mut w, &row).map_err(fail)?;
                     }
                 }
                 w.flush()

@@ -1,4 +1,5 @@
-//! The command line: `sagline [serve]`, `sagline analyze`, `sagline section` and `sagline user add`.
+//! The command line: `sagline [serve]`, `sagline analyze`, `sagline section`, `sagline user add`
+//! and `sagline backup`.
 
 use crate::auth::Role;
 use crate::services::accounts;
@@ -29,6 +30,8 @@ pub enum Command {
     Section(crate::section_batch::SectionArgs),
     /// Manage the accounts of a database.
     User(UserArgs),
+    /// Copy a database to a file, consistently, also while the server is using it.
+    Backup(BackupArgs),
     /// Rebuild the demo study's CSV files from its basin description (seeded, repeatable).
     BuildDemo(BuildDemoArgs),
 }
@@ -41,6 +44,19 @@ pub struct BuildDemoArgs {
     /// Where tops.csv, wells.csv and sea_level.csv are written.
     #[arg(long, default_value = "demo-db")]
     pub out: PathBuf,
+}
+
+#[derive(Debug, Clone, Args)]
+pub struct BackupArgs {
+    /// The database to copy (the server's --db). It is only read: never created or upgraded.
+    #[arg(long, default_value = "sagline.db")]
+    pub db: PathBuf,
+    /// The file the copy is written to. It must not exist, unless --force is given.
+    #[arg(long)]
+    pub out: PathBuf,
+    /// Replace --out FILE if it exists.
+    #[arg(long)]
+    pub force: bool,
 }
 
 #[derive(Debug, Args)]
@@ -63,7 +79,8 @@ pub struct UserAddArgs {
     /// comments) or admin (also users, studies, parameters, catalogue, deletes).
     #[arg(long, value_parser = parse_role)]
     pub role: Role,
-    /// The study database (SQLite); it must exist (start the server once to create it).
+    /// The study database (SQLite); it must exist (start the server once to create it:
+    /// `sagline serve` for sagline.db, `sagline serve --db PATH --create` for another).
     #[arg(long, default_value = "sagline.db")]
     pub db: PathBuf,
     /// Read the password from the first line of standard input instead of generating one.
@@ -81,19 +98,42 @@ pub struct ServeArgs {
     /// 0.0.0.0:8080 to let the office network in.
     #[arg(long, default_value = "127.0.0.1:8080")]
     pub bind: SocketAddr,
-    /// The study database (SQLite). Created, holding the demo study, if it does not exist.
-    #[arg(long, default_value = "sagline.db")]
-    pub db: PathBuf,
-    /// Create a new database without the demo study.
+    /// The study database (SQLite) [default: sagline.db, created holding the demo study
+    /// if it does not exist]. A database named here must exist, unless --create is given.
+    #[arg(long)]
+    pub db: Option<PathBuf>,
+    /// Create the --db database if it does not exist (holding the demo study unless --empty).
+    #[arg(long)]
+    pub create: bool,
+    /// A new database starts without the demo study.
     #[arg(long)]
     pub empty: bool,
+}
+
+impl ServeArgs {
+    /// The database used when no --db is given; the only one created without --create.
+    pub const DEFAULT_DB: &str = "sagline.db";
+
+    /// The database to serve.
+    pub fn db_path(&self) -> PathBuf {
+        self.db
+            .clone()
+            .unwrap_or_else(|| PathBuf::from(Self::DEFAULT_DB))
+    }
+
+    /// Whether a missing database may be created: for the default path, or when asked
+    /// with --create, so a mistyped --db never silently starts a new database.
+    pub fn may_create(&self) -> bool {
+        self.db.is_none() || self.create
+    }
 }
 
 impl Default for ServeArgs {
     fn default() -> Self {
         ServeArgs {
             bind: "127.0.0.1:8080".parse().expect("a valid default address"),
-            db: PathBuf::from("sagline.db"),
+            db: None,
+            create: false,
             empty: false,
         }
     }
@@ -109,6 +149,7 @@ pub fn main() -> ExitCode {
         Some(Command::User(UserArgs {
             action: UserAction::Add(args),
         })) => user_add(&args),
+        Some(Command::Backup(args)) => backup(&args),
         None => serve_blocking(ServeArgs::default()),
     }
 }
@@ -140,7 +181,7 @@ fn serve_blocking(args: ServeArgs) -> ExitCode {
 fn user_add(args: &UserAddArgs) -> ExitCode {
     if !args.db.exists() {
         eprintln!(
-            "error: there is no database at {}; start the server once to create it, or give --db PATH",
+            "error: there is no database at {}; start the server once to create it (`sagline serve --db PATH --create`), or give --db PATH",
             args.db.display()
         );
         return ExitCode::FAILURE;
@@ -187,6 +228,31 @@ fn user_add(args: &UserAddArgs) -> ExitCode {
         }
         Err(e) => {
             eprintln!("error: {e:#}");
+            ExitCode::FAILURE
+        }
+    }
+}
+
+/// `sagline backup`: the copy is whole or not written at all.
+fn backup(args: &BackupArgs) -> ExitCode {
+    let runtime = match runtime() {
+        Ok(rt) => rt,
+        Err(code) => return code,
+    };
+    match runtime.block_on(crate::services::backup::backup(
+        &args.db, &args.out, args.force,
+    )) {
+        Ok(made) => {
+            println!(
+                "Backed up {} to {} ({} bytes).",
+                args.db.display(),
+                made.path.display(),
+                made.bytes
+            );
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!("error: {e}");
             ExitCode::FAILURE
         }
     }

@@ -150,11 +150,12 @@ fn number(x: f64) -> String {
     format!("{}", x + 0.0)
 }
 
+/// Like every CSV Sagline writes, through `csv_cells::write_row` (no live formula).
 fn csv_text(header: &[&str], rows: Vec<Vec<String>>) -> Result<String, String> {
     let mut writer = csv::Writer::from_writer(Vec::new());
-    writer.write_record(header).map_err(|e| e.to_string())?;
+    crate::csv_cells::write_row(&mut writer, header).map_err(|e| e.to_string())?;
     for row in rows {
-        writer.write_record(&row).map_err(|e| e.to_string())?;
+        crate::csv_cells::write_row(&mut writer, &row).map_err(|e| e.to_string())?;
     }
     let bytes = writer.into_inner().map_err(|e| e.to_string())?;
     String::from_utf8(bytes).map_err(|e| e.to_string())

@@ -10,6 +10,8 @@ pub mod auth;
 pub mod batch;
 /// The command line.
 pub mod cli;
+/// Writing CSV rows with no cell a spreadsheet would run as a formula.
+pub mod csv_cells;
 /// The demo study, built from the files in `demo-db/`.
 pub mod demo;
 /// Builds the demo study's CSV files from the invented basin in `demo-db/basin.json`.

@@ -444,7 +444,7 @@ pub fn render(report: &SectionReport, format: OutputFormat) -> Result<Vec<u8>, B
             };
             let mut w = csv::Writer::from_writer(Vec::new());
             let fail = |e: csv::Error| BatchError(format!("cannot write CSV: {e}"));
-            w.write_record(CSV_HEADER).map_err(fail)?;
+            crate::csv_cells::write_row(&mut w, CSV_HEADER).map_err(fail)?;
             let run = &report.flexural;
             for age in &run.ages {
                 for well in &age.wells {
@@ -452,23 +452,26 @@ pub fn render(report: &SectionReport, format: OutputFormat) -> Result<Vec<u8>, B
                         well.airy_tectonic_subsidence,
                         well.flexural_tectonic_subsidence,
                     );
-                    w.write_record([
-                        report.section.name.clone(),
-                        num(run.elastic_thickness_m),
-                        well.well.clone(),
-                        num(well.distance_m),
-                        offset(&well.well),
-                        num(age.age_ma),
-                        well.interpolated_in_age.to_string(),
-                        num(a.min),
-                        num(a.best),
-                        num(a.max),
-                        num(f.min),
-                        num(f.best),
-                        num(f.max),
-                        num(well.local_load_deflection_m),
-                        num(well.flexural_load_deflection_m),
-                    ])
+                    crate::csv_cells::write_row(
+                        &mut w,
+                        [
+                            report.section.name.clone(),
+                            num(run.elastic_thickness_m),
+                            well.well.clone(),
+                            num(well.distance_m),
+                            offset(&well.well),
+                            num(age.age_ma),
+                            well.interpolated_in_age.to_string(),
+                            num(a.min),
+                            num(a.best),
+                            num(a.max),
+                            num(f.min),
+                            num(f.best),
+                            num(f.max),
+                            num(well.local_load_deflection_m),
+                            num(well.flexural_load_deflection_m),
+                        ],
+                    )
                     .map_err(fail)?;
                 }
             }
@@ -487,7 +490,7 @@ pub fn render(report: &SectionReport, format: OutputFormat) -> Result<Vec<u8>, B
                         row[5] = num(*age);
                         row[8] = num(*airy);
                         row[11] = num(*flexural);
-                        w.write_record(&row).map_err(fail)?;
+                        crate::csv_cells::write_row(&mut w, &row).map_err(fail)?;
                     }
                 }
             }

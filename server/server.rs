@@ -7,21 +7,29 @@ use anyhow::Context;
 use std::net::SocketAddr;
 use tokio::net::TcpListener;
 
-/// Open (or create) the database, seed the demo study into a new one unless
-/// `--empty`, create the first admin account if there is no account yet (its password
-/// is printed once), then serve until Ctrl-C.
+/// Open the database (creating it when the default path is missing, or a missing
+/// `--db` with `--create`), seed the demo study into a new one unless `--empty`, create
+/// the first admin account if there is no account yet (its password is printed once),
+/// then serve until Ctrl-C.
 pub async fn run(args: ServeArgs) -> anyhow::Result<()> {
-    let is_new = !args.db.exists();
-    let db = store::open(&args.db)
+    let path = args.db_path();
+    let is_new = !path.exists();
+    if is_new && !args.may_create() {
+        anyhow::bail!(
+            "no database at {}; pass --create to start a new one (or check the path)",
+            path.display()
+        );
+    }
+    let db = store::open_or_create(&path, args.may_create())
         .await
-        .with_context(|| format!("cannot open the database {}", args.db.display()))?;
+        .with_context(|| format!("cannot open the database {}", path.display()))?;
     if is_new && !args.empty {
         demo::seed(&db)
             .await
             .context("cannot build the demo study")?;
-        tracing::info!(db = %args.db.display(), "created a new database holding the demo study");
+        tracing::info!(db = %path.display(), "created a new database holding the demo study");
     } else if is_new {
-        tracing::info!(db = %args.db.display(), "created a new, empty database");
+        tracing::info!(db = %path.display(), "created a new, empty database");
     }
     let first_admin_password = accounts::ensure_first_admin(&db)
         .await
@@ -31,7 +39,7 @@ pub async fn run(args: ServeArgs) -> anyhow::Result<()> {
         .with_context(|| format!("cannot listen on {}", args.bind))?;
     let addr = listener.local_addr()?;
     let url = format!("http://{}/", display_addr(addr));
-    println!("Sagline is serving {} at {url}", args.db.display());
+    println!("Sagline is serving {} at {url}", path.display());
     if let Some(password) = first_admin_password {
         // Printed, never logged: this console line is the only place the password appears.
         println!(

@@ -1013,7 +1013,14 @@ struct Console {
 impl Console {
     fn start(db: &std::path::Path) -> Console {
         let mut child = tokio::process::Command::new(env!("CARGO_BIN_EXE_sagline"))
-            .args(["serve", "--empty", "--bind", "127.0.0.1:0", "--db"])
+            .args([
+                "serve",
+                "--create",
+                "--empty",
+                "--bind",
+                "127.0.0.1:0",
+                "--db",
+            ])
             .arg(db)
             // Everything the server can log, to show the passwords are in none of it.
             .env("RUST_LOG", "trace")

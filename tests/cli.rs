@@ -3,6 +3,7 @@
 //! command and its JSON"), or CSV, on stdout or into `--out`; every kind of bad input
 //! exits non-zero, names the file, line, column and reason on stderr, and prints
 //! nothing on stdout (README "Batch analysis": "nothing partial is printed").
+//! `sagline serve` creates a missing database only on the default path or when asked.
 //!
 //! Wells with a clear rift are built by the forward model (`science::forward`), so the
 //! stretching they were built with is known. Every well and horizon name is invented.
@@ -953,4 +954,112 @@ fn a_column_beyond_physical_bounds_is_refused_before_anything_is_analysed() {
             ],
         );
     }
+}
+
+impl Workspace {
+    /// Start `sagline serve ARGS --bind 127.0.0.1:0` in this directory and read its
+    /// standard output up to the line naming where it serves; then stop it. Returns
+    /// that line, or `Err` with the exit status and standard error when the server
+    /// stopped before serving.
+    fn serve_once(&self, args: &[&str]) -> Result<String, (std::process::ExitStatus, String)> {
+        use std::io::{BufRead, BufReader, Read};
+        let mut child = Command::new(env!("CARGO_BIN_EXE_sagline"))
+            .arg("serve")
+            .args(args)
+            .args(["--bind", "127.0.0.1:0"])
+            .current_dir(self.dir.path())
+            .env("RUST_LOG", "warn")
+            .stdout(std::process::Stdio::piped())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .expect("start the server binary");
+        let mut stdout = BufReader::new(child.stdout.take().expect("stdout"));
+        let mut line = String::new();
+        let serving = loop {
+            line.clear();
+            let read = stdout
+                .read_line(&mut line)
+                .expect("read the server's output");
+            if read == 0 {
+                break None;
+            }
+            if line.starts_with("Sagline is serving") {
+                break Some(line.trim_end().to_string());
+            }
+        };
+        match serving {
+            Some(line) => {
+                child.kill().expect("stop the server");
+                child.wait().expect("wait for the server");
+                Ok(line)
+            }
+            None => {
+                let status = child.wait().expect("wait for the server");
+                let mut err = String::new();
+                child
+                    .stderr
+                    .take()
+                    .expect("stderr")
+                    .read_to_string(&mut err)
+                    .expect("read stderr");
+                Err((status, err))
+            }
+        }
+    }
+}
+
+#[test]
+fn serve_refuses_a_missing_database_unless_asked_to_create_it() {
+    let ws = Workspace::new();
+    let mistyped = ws.path("studies-typo.db");
+    let path = mistyped.display().to_string();
+
+    let (status, err) = ws
+        .serve_once(&["--db", &path])
+        .expect_err("a missing --db must not be served");
+    assert_eq!(status.code(), Some(1), "{err}");
+    assert!(
+        err.contains(&format!("no database at {path}")) && err.contains("pass --create"),
+        "{err}"
+    );
+    assert!(!mistyped.exists(), "nothing created at the mistyped path");
+    assert!(
+        !ws.path("studies-typo.db-wal").exists() && !ws.path("sagline.db").exists(),
+        "no other database file made"
+    );
+
+    let serving = ws
+        .serve_once(&["--db", &path, "--create", "--empty"])
+        .unwrap_or_else(|(s, e)| panic!("--create must create it ({s}): {e}"));
+    assert!(serving.contains("studies-typo.db"), "{serving}");
+    assert!(mistyped.is_file(), "--create made the database");
+
+    // Once it exists it is served without --create.
+    let again = ws
+        .serve_once(&["--db", &path])
+        .unwrap_or_else(|(s, e)| panic!("an existing --db is served ({s}): {e}"));
+    assert!(again.contains("studies-typo.db"), "{again}");
+}
+
+#[test]
+fn serve_without_db_creates_the_default_demo_database() {
+    let ws = Workspace::new();
+    let serving = ws
+        .serve_once(&[])
+        .unwrap_or_else(|(s, e)| panic!("the default path is created ({s}): {e}"));
+    assert!(serving.contains("sagline.db"), "{serving}");
+    let db = ws.path("sagline.db");
+    assert!(db.is_file(), "sagline.db made in the working directory");
+    let studies = tokio::runtime::Runtime::new()
+        .expect("runtime")
+        .block_on(async {
+            let pool = sagline::store::open(&db).await.expect("open sagline.db");
+            let names: Vec<String> = sqlx::query_scalar("SELECT name FROM studies")
+                .fetch_all(&pool)
+                .await
+                .expect("studies");
+            pool.close().await;
+            names
+        });
+    assert_eq!(studies.len(), 1, "the demo study: {studies:?}");
 }

@@ -166,7 +166,7 @@ pub async fn create_user(
         .or_else(|| generated_password.clone())
         .unwrap_or_default();
     let hash = hash_password(chosen).await?;
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     let id = match store::users::insert(&mut *tx, name, role, &hash).await {
         Ok(id) => id,
         // Added by someone else since the check above.
@@ -230,7 +230,7 @@ pub async fn change_role(
     role: Role,
     actor: &str,
 ) -> Result<UserRow, ServiceError> {
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     let before = load_user(&mut tx, user_id).await?;
     if before.role == role {
         return Ok(before);
@@ -264,7 +264,7 @@ pub async fn reset_password(
         .ok_or_else(|| ServiceError::NotFound(format!("user {user_id}")))?;
     let new_password = password::generate();
     let hash = hash_password(new_password.clone()).await?;
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     load_user(&mut tx, user_id).await?;
     store::users::set_password_hash(&mut *tx, user_id, &hash).await?;
     let ended = store::sessions::delete_for_user(&mut *tx, user_id).await?;
@@ -288,7 +288,7 @@ pub async fn set_disabled(
     disabled: bool,
     actor: &str,
 ) -> Result<UserRow, ServiceError> {
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     let before = load_user(&mut tx, user_id).await?;
     if before.disabled == disabled {
         return Ok(before);
@@ -323,7 +323,7 @@ pub async fn sign_out_everywhere(
     user_id: i64,
     actor: &str,
 ) -> Result<u64, ServiceError> {
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     let user = load_user(&mut tx, user_id).await?;
     let ended = store::sessions::delete_for_user(&mut *tx, user_id).await?;
     record(

@@ -171,7 +171,7 @@ pub async fn store_upload(
     replace: bool,
     actor: &str,
 ) -> Result<ImportOutcome, ServiceError> {
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     let mut outcome = ImportOutcome {
         notes: upload.notes(),
         ..Default::default()

@@ -3,6 +3,7 @@
 //! that same transaction, so a change and its record land together or not at all.
 
 pub mod accounts;
+pub mod backup;
 pub mod cache;
 pub mod import;
 pub mod results;
@@ -50,7 +51,7 @@ pub async fn create_study(
     description: &str,
     actor: &str,
 ) -> Result<i64, sqlx::Error> {
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     let params = ModelParameters::default();
     let id = store::studies::insert(&mut *tx, name, description, &params).await?;
     for l in Catalogue::published_defaults().lithologies() {
@@ -88,7 +89,7 @@ pub async fn update_parameters(
     p: &ModelParameters,
     actor: &str,
 ) -> Result<(), ServiceError> {
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     let before = store::studies::get(&mut *tx, study_id)
         .await?
         .ok_or_else(|| ServiceError::NotFound(format!("study {study_id}")))?
@@ -150,7 +151,7 @@ pub async fn save_lithology(
         edit.grain_density_kg_m3,
     )
     .map_err(|e| ServiceError::Invalid(format!("Lithology '{name}': {e}")))?;
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     let before = store::lithologies::list(&mut *tx, study_id)
         .await?
         .into_iter()
@@ -212,7 +213,7 @@ pub async fn delete_lithology(
     lithology_id: i64,
     actor: &str,
 ) -> Result<(), ServiceError> {
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     let row = store::lithologies::get(&mut *tx, study_id, lithology_id)
         .await?
         .ok_or_else(|| ServiceError::NotFound(format!("lithology {lithology_id}")))?;

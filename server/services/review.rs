@@ -98,16 +98,6 @@ pub struct SavedPick {
     pub kind: &'static str,
 }
 
-/// A transaction that holds the write lock from its start. A save reads the stored
-/// version and then writes; with SQLite's default deferred start, two saves that read
-/// the same version would have the later writer fail with "database is locked"
-/// instead of waiting and being refused as stale.
-async fn write_transaction(
-    db: &SqlitePool,
-) -> Result<sqlx::Transaction<'static, sqlx::Sqlite>, ServiceError> {
-    Ok(db.begin_with("BEGIN IMMEDIATE").await?)
-}
-
 /// Save a pick made against `edit.version`. A save against an old version is
 /// refused with the stored pick in the message, and nothing is overwritten.
 pub async fn save_pick(
@@ -116,7 +106,7 @@ pub async fn save_pick(
     edit: &PickEdit,
     actor: &str,
 ) -> Result<SavedPick, ServiceError> {
-    let mut tx = write_transaction(db).await?;
+    let mut tx = store::write_transaction(db).await?;
     let surfaces = store::wells::surfaces(&mut *tx, well.id).await?;
     let ages = match (surfaces.first(), surfaces.last()) {
         (Some(a), Some(b)) => (a.age_ma, b.age_ma),
@@ -224,7 +214,7 @@ pub async fn delete_pick(
     version: i64,
     actor: &str,
 ) -> Result<PickRow, ServiceError> {
-    let mut tx = write_transaction(db).await?;
+    let mut tx = store::write_transaction(db).await?;
     let before = store::picks::get(&mut *tx, well.id, event).await?;
     let Some(b) = before.clone().filter(|b| b.version == version) else {
         return Err(stale(
@@ -275,7 +265,7 @@ pub async fn add_comment(
             "A comment on a pick names rift event 1 or 2.".into(),
         ));
     }
-    let mut tx = db.begin().await?;
+    let mut tx = store::write_transaction(db).await?;
     let comment = store::comments::insert(&mut *tx, well.id, pick_event, actor, body).await?;
     store::activity::record(
         &mut *tx,

@@ -56,9 +56,15 @@ impl ExportMeta {
             .join("; ")
     }
 
-    /// `#` comment lines to put above a CSV table. Each entry stays on its own line (a
-    /// line break in a study, well or lithology name is written as a space), so a reader
-    /// that skips `#` lines finds the table's header next.
+    /// `#` comment lines to put above a CSV table. Each entry stays on its own line
+    /// starting with `#` (a line break in a study, well or lithology name is written as a
+    /// space), so a reader that skips `#` lines finds the table's header next.
+    ///
+    /// A spreadsheet splits a line at its commas into cells. The first cell starts with
+    /// `#`, so it is never a formula and is written as it is; every later piece is
+    /// written as a CSV record, quoted and neutralised like any other cell
+    /// ([`crate::csv_cells`]), so a name such as `a,=HYPERLINK(…)` never becomes a live
+    /// formula and a piece beginning with a quote cannot swallow the lines after it.
     pub fn csv_preamble(&self, what: &str) -> String {
         [
             what.to_string(),
@@ -69,7 +75,7 @@ impl ExportMeta {
             self.caution.to_string(),
         ]
         .iter()
-        .map(|entry| format!("# {}\n", one_line(entry)))
+        .map(|entry| comment_line(&format!("# {}", one_line(entry))))
         .collect()
     }
 
@@ -98,6 +104,26 @@ impl ExportMeta {
             &svg[open_end..]
         )
     }
+}
+
+/// One `#` line (no line break in `line`): its first comma-separated piece as it is,
+/// the rest as a CSV record of neutralised cells.
+fn comment_line(line: &str) -> String {
+    let (first, rest) = match line.split_once(',') {
+        Some((first, rest)) => (first, Some(rest)),
+        None => (line, None),
+    };
+    let Some(rest) = rest else {
+        return format!("{first}\n");
+    };
+    let mut w = csv::WriterBuilder::new().from_writer(Vec::new());
+    // Writing to memory cannot fail but for a bug; keep what was written.
+    let _ = crate::csv_cells::write_row(&mut w, rest.split(','));
+    let record = w
+        .into_inner()
+        .map(|b| String::from_utf8_lossy(&b).into_owned())
+        .unwrap_or_else(|_| "\n".to_string());
+    format!("{first},{record}")
 }
 
 fn one_line(text: &str) -> String {
@@ -215,13 +241,13 @@ fn xml_escape(s: &str) -> String {
         .replace('"', "&quot;")
 }
 
-/// Turn rows into CSV text (with the preamble).
+/// Turn rows into CSV text (with the preamble); no cell is a live formula.
 pub fn csv_text(meta: &ExportMeta, what: &str, header: &[&str], rows: &[Vec<String>]) -> String {
     let mut w = csv::Writer::from_writer(Vec::new());
     // Writing to memory cannot fail but for a bug; keep going with what was written.
-    let _ = w.write_record(header);
+    let _ = crate::csv_cells::write_row(&mut w, header);
     for r in rows {
-        let _ = w.write_record(r);
+        let _ = crate::csv_cells::write_row(&mut w, r);
     }
     let body = w
         .into_inner()
@@ -280,6 +306,43 @@ mod tests {
         );
         assert!(out.contains("do not replace"), "{out}");
         assert!(out.ends_with("</g></svg>"), "{out}");
+    }
+
+    #[test]
+    fn a_comment_line_keeps_its_hash_first_and_neutralises_what_follows_a_comma() {
+        for (line, expected) in [
+            ("# study: Veyra", "# study: Veyra\n"),
+            // A quote in the first piece is read as it is (the cell starts with `#`).
+            ("# well \"=x\"", "# well \"=x\"\n"),
+            (
+                "# study: a,=HYPERLINK(\"y\")",
+                "# study: a,\"'=HYPERLINK(\"\"y\"\")\"\n",
+            ),
+            ("# s: a,@b,-2.5,+c", "# s: a,'@b,-2.5,'+c\n"),
+            // A piece starting with a quote is quoted, so it cannot open a quoted field.
+            ("# s: a,\"b", "# s: a,\"\"\"b\"\n"),
+            (
+                "# lithologies: shale (phi0 0.63, c 0.51 /km)",
+                "# lithologies: shale (phi0 0.63, c 0.51 /km)\n",
+            ),
+        ] {
+            assert_eq!(comment_line(line), expected, "{line:?}");
+        }
+    }
+
+    #[test]
+    fn every_preamble_line_starts_with_a_hash() {
+        let preamble = ExportMeta {
+            study: "Orrin,=1+1,\"@x\"".into(),
+            ..meta()
+        }
+        .csv_preamble("Wells of =HYPERLINK(\"z\")");
+        assert_eq!(preamble.lines().count(), 6, "{preamble}");
+        assert!(preamble.lines().all(|l| l.starts_with('#')), "{preamble}");
+        assert!(
+            preamble.contains("# study: Orrin,'=1+1,\"\"\"@x\"\"\"\n"),
+            "{preamble}"
+        );
     }
 
     #[test]
