@@ -396,7 +396,9 @@ pub fn propose_phases(
         scores,
         PickOrigin::Proposed,
     );
-    if model == StretchingModel::TwoLayer {
+    // The depth-dependent fit at the single event's timing stays beside whatever was
+    // chosen, so the alternative the table scores can be looked at.
+    if proposal.two_layer.is_none() {
         proposal.two_layer = two_layer;
     }
     proposal.model = model;

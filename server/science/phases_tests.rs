@@ -160,7 +160,17 @@ fn two_separate_rift_events_are_found() {
         .collect();
     assert_eq!(timing, vec![(200.0, 185.0), (80.0, 70.0)]);
     assert_relative(fit.cumulative_beta(), 1.5 * 1.8, 1e-3, "cumulative beta");
-    assert!(p.two_layer.is_none());
+    assert_eq!(p.model, StretchingModel::TwoEvents);
+    // The depth-dependent alternative (one event) stays beside it, scored worse.
+    let alt = p
+        .alternatives
+        .iter()
+        .find(|a| a.model == StretchingModel::TwoLayer);
+    assert!(
+        alt.is_some_and(|a| a.bic_above_best > 0.0),
+        "{:?}",
+        p.alternatives
+    );
     assert_eq!(p.intervals.len(), 5);
 }
 
