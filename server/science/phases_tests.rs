@@ -262,35 +262,59 @@ fn numerically_modelled_single_rifts_get_one_event_with_the_right_factor() {
     let l = mckenzie();
     let mut ages = surface_ages(200.0, &[170.0, 150.0, 140.0, 130.0]);
     ages.sort_by(|a, b| b.total_cmp(a));
-    for (onset, end, beta) in [
-        (150.0, 150.0, 2.0),
-        (150.0, 140.0, 2.0),
-        // A 40 Myr rift is not here: without a finite-duration fit its end is dated two
-        // surfaces early (140 for 130 Ma, seen in this test); see the bound test below.
-        (170.0, 150.0, 1.05),
-        (170.0, 150.0, 3.0),
+    for (onset, end, delta, beta) in [
+        (150.0, 150.0, 2.0, 2.0),
+        (150.0, 140.0, 2.0, 2.0),
+        (170.0, 130.0, 2.0, 2.0),
+        (170.0, 150.0, 1.05, 1.05),
+        (170.0, 150.0, 1.5, 1.5),
+        (170.0, 150.0, 3.0, 3.0),
+        (170.0, 150.0, 1.5, 3.0),
     ] {
-        let well = numerical_well(&[StretchingEvent::uniform(onset, end, beta)], &ages);
+        let event = StretchingEvent {
+            onset_ma: onset,
+            end_ma: end,
+            crust_factor: delta,
+            mantle_factor: beta,
+        };
+        let well = numerical_well(&[event], &ages);
         let p = propose_phases(&l, &well).unwrap();
-        let what = format!("beta {beta} from {onset} to {end} Ma");
-        assert_eq!(
+        let what = format!("delta {delta}, beta {beta} from {onset} to {end} Ma");
+        // The right class: uniform (instantaneous or finite) or depth-dependent (finite).
+        let expected: &[StretchingModel] = if delta == beta {
+            &[StretchingModel::Uniform, StretchingModel::FiniteUniform]
+        } else {
+            &[StretchingModel::FiniteTwoLayer]
+        };
+        assert!(
+            expected.contains(&p.model),
+            "{what}: {:?} chosen from {:?}",
             p.model,
-            StretchingModel::Uniform,
-            "{what}: {:?}",
             p.alternatives
         );
-        let e = p.uniform.as_ref().unwrap().events[0];
+        // Timing within one surface, factors within 5 %.
+        let (got_onset, got_end, got_delta, got_beta) = match &p.finite {
+            Some(f) => (
+                f.rift_onset_ma,
+                f.rift_end_ma,
+                f.crust_factor,
+                f.mantle_factor,
+            ),
+            None => {
+                let e = p.uniform.as_ref().unwrap().events[0];
+                (e.rift_onset_ma, e.rift_end_ma, e.beta, e.beta)
+            }
+        };
         assert!(
-            surfaces_apart(&ages, e.rift_onset_ma, onset) <= 1,
-            "{what}: onset {}",
-            e.rift_onset_ma
+            surfaces_apart(&ages, got_onset, onset) <= 1,
+            "{what}: onset {got_onset}"
         );
         assert!(
-            surfaces_apart(&ages, e.rift_end_ma, end) <= 1,
-            "{what}: end {}",
-            e.rift_end_ma
+            surfaces_apart(&ages, got_end, end) <= 1,
+            "{what}: end {got_end}"
         );
-        assert_relative(e.beta, beta, 0.05, &what);
+        assert_relative(got_delta, delta, 0.05, &format!("{what}: delta"));
+        assert_relative(got_beta, beta, 0.05, &format!("{what}: beta"));
         assert!(
             p.scores.misfit_scale < 1.5,
             "{what}: fits about within the ranges"

@@ -90,8 +90,25 @@ pub struct StretchingOut {
     pub two_layer: Option<TwoLayerOut>,
     /// Extension: what `heat_flow_mw_m2` is.
     pub heat_flow_basis: &'static str,
+    /// Extension: the chosen finite-duration fit (numerical plate), when one was chosen;
+    /// `beta` and the events above are then the closed-form fit at the same timing.
+    pub finite_duration: Option<FiniteOut>,
     /// Extension: the sources of `beta_min`..`beta_max` (the combined range).
     pub beta_range: Option<BetaRangeOut>,
+}
+
+/// A rift of finite duration fitted with the numerical plate.
+#[derive(Debug, Clone, Serialize)]
+pub struct FiniteOut {
+    /// "uniform-finite" or "two-layer-finite".
+    pub model: &'static str,
+    /// delta (equal to `mantle_factor` for a uniform event).
+    pub crust_factor: f64,
+    pub mantle_factor: f64,
+    pub rift_onset_ma: f64,
+    pub rift_end_ma: f64,
+    pub pre_rift_subsidence_m: f64,
+    pub rms_misfit_m: f64,
 }
 
 /// What the uniform beta's range is made of: the water-depth ranges (curve shifts and

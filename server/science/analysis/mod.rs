@@ -138,6 +138,11 @@ pub fn interpret(
             (flat(&ages), flat(&grid), curve)
         }
     };
+    // A finite-duration model: its curve and heat flow come from the numerical plate.
+    let (heat_flow_at_ages, heat_flow_grid, model_curve) = match &proposal.finite {
+        Some(f) => finite_histories(&lithosphere, f, &ages, &grid)?,
+        None => (heat_flow_at_ages, heat_flow_grid, model_curve),
+    };
     let two_layer_heat_flow_at_ages = proposal
         .two_layer
         .as_ref()
@@ -376,7 +381,20 @@ pub fn stretching_out(i: &Interpretation) -> Option<StretchingOut> {
             })
             .collect(),
         two_layer,
-        heat_flow_basis: HEAT_FLOW_BASIS,
+        heat_flow_basis: if i.proposal.finite.is_some() {
+            FINITE_HEAT_FLOW_BASIS
+        } else {
+            HEAT_FLOW_BASIS
+        },
+        finite_duration: i.proposal.finite.map(|f| contract::FiniteOut {
+            model: model_key(i.proposal.model),
+            crust_factor: f.crust_factor,
+            mantle_factor: f.mantle_factor,
+            rift_onset_ma: f.rift_onset_ma,
+            rift_end_ma: f.rift_end_ma,
+            pre_rift_subsidence_m: f.pre_rift_subsidence_m,
+            rms_misfit_m: f.rms_misfit_m,
+        }),
         beta_range: combined.map(|u| contract::BetaRangeOut {
             water_depth_min: u.beta.min(),
             water_depth_max: u.beta.max(),
@@ -408,8 +426,55 @@ pub fn model_choice_out(i: &Interpretation) -> contract::ModelChoiceOut {
     }
 }
 
+/// Heat flow at the history ages and on the grid, and the model curve on the grid.
+type ModelHistories = (Vec<HeatFlowPoint>, Vec<HeatFlowPoint>, Vec<(f64, f64)>);
+
+/// Heat flow at `ages` and on `grid`, and the model curve on `grid`, of a finite-duration
+/// fit, from one run of the numerical plate at its default resolution (heat flow out of
+/// the top of a plate without radiogenic heat: the basal heat flow).
+fn finite_histories(
+    lithosphere: &Lithosphere,
+    fit: &crate::finite_fit::FiniteRiftFit,
+    ages: &[f64],
+    grid: &[f64],
+) -> Result<ModelHistories, ScienceError> {
+    use crate::numerical_lithosphere as plate;
+    let mut wanted: Vec<f64> = ages.iter().chain(grid).copied().collect();
+    wanted.sort_by(|a, b| b.total_cmp(a));
+    wanted.dedup();
+    let history = plate::run_plate(
+        lithosphere,
+        &plate::CrustalHeatProduction::NONE,
+        &[fit.event()],
+        plate::IsostasyConvention::McKenzie,
+        &plate::NumericalSettings::default(),
+        &wanted,
+        false,
+    )?;
+    let at = |age: f64| {
+        let i = wanted.partition_point(|&a| a > age);
+        &history.states[i]
+    };
+    let flow = |list: &[f64]| {
+        list.iter()
+            .map(|&age_ma| HeatFlowPoint {
+                age_ma,
+                value: at(age_ma).surface_heat_flow_mw_m2,
+            })
+            .collect::<Vec<_>>()
+    };
+    let curve = grid
+        .iter()
+        .map(|&a| (a, fit.pre_rift_subsidence_m + at(a).subsidence_m))
+        .collect();
+    Ok((flow(ages), flow(grid), curve))
+}
+
 /// What the contract's `heat_flow_mw_m2` is.
 pub const HEAT_FLOW_BASIS: &str = "basal (mantle) heat flow of the closed-form stretching model, without radiogenic heat; the surface heat flow is higher by the crust's and sediments' heat production";
+
+/// What `heat_flow_mw_m2` is when a finite-duration model was chosen.
+pub const FINITE_HEAT_FLOW_BASIS: &str = "basal (mantle) heat flow of the numerical lithosphere stretched over the rift interval, without radiogenic heat; the surface heat flow is higher by the crust's and sediments' heat production";
 
 /// The contract's key of a model.
 pub fn model_key(model: phases::StretchingModel) -> &'static str {
@@ -418,6 +483,8 @@ pub fn model_key(model: phases::StretchingModel) -> &'static str {
         phases::StretchingModel::Uniform => "uniform",
         phases::StretchingModel::TwoEvents => "two-events",
         phases::StretchingModel::TwoLayer => "two-layer",
+        phases::StretchingModel::FiniteUniform => "uniform-finite",
+        phases::StretchingModel::FiniteTwoLayer => "two-layer-finite",
     }
 }
 
