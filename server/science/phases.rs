@@ -125,6 +125,9 @@ pub enum StretchingModel {
     FiniteUniform,
     /// One depth-dependent event over its whole syn-rift interval (numerical plate).
     FiniteTwoLayer,
+    /// The well begins after its rift: thermal subsidence only, from a rift at or before
+    /// its oldest surface.
+    PostRiftOnly,
 }
 
 impl StretchingModel {
@@ -137,6 +140,7 @@ impl StretchingModel {
             StretchingModel::TwoLayer => "one depth-dependent event",
             StretchingModel::FiniteUniform => "one uniform event of finite duration",
             StretchingModel::FiniteTwoLayer => "one depth-dependent event of finite duration",
+            StretchingModel::PostRiftOnly => "post-rift only (the rift is older than the well)",
         }
     }
 
@@ -149,6 +153,8 @@ impl StretchingModel {
             StretchingModel::TwoEvents => 7,
             StretchingModel::TwoLayer | StretchingModel::FiniteTwoLayer => 5,
             StretchingModel::FiniteUniform => 4,
+            // beta, the rift's age and Y0.
+            StretchingModel::PostRiftOnly => 3,
         }
     }
 }
@@ -187,6 +193,10 @@ pub struct PhaseProposal {
     /// The finite-duration fit, when one of the finite models was chosen.
     #[serde(default)]
     pub finite: Option<super::finite_fit::FiniteRiftFit>,
+    /// For a post-rift-only well: the least and greatest factor among rift ages that fit
+    /// equally well (the reported fit is the least).
+    #[serde(default)]
+    pub post_rift_factor_span: Option<(f64, f64)>,
 }
 
 /// BIC of a model with `k` parameters whose misfit is `chi_square`, for n points:
@@ -301,6 +311,9 @@ pub fn propose_phases(
         None
     };
     let two_chi2 = two.as_ref().map(uniform_chi2);
+    let post_rift_fit = post_rift_only(lithosphere, observations, &sigmas);
+    let post_rift = post_rift_fit.as_ref().map(|p| p.0.clone());
+    let post_rift_chi2 = post_rift.as_ref().map(uniform_chi2);
     let first = one.events[0];
     let two_layer = super::fit::fit_two_layer(
         lithosphere,
@@ -377,6 +390,14 @@ pub fn propose_phases(
         };
         tried.push((StretchingModel::TwoLayer, b, t.rms_misfit_m, refused));
     }
+    if let (Some(p), Some(chi2)) = (&post_rift, post_rift_chi2) {
+        tried.push((
+            StretchingModel::PostRiftOnly,
+            score(chi2, StretchingModel::PostRiftOnly),
+            p.rms_misfit_m,
+            at_bound(&[p.events[0].beta]).then_some(FACTOR_AT_BOUND),
+        ));
+    }
     if let Some(f) = &finite_uniform {
         tried.push((
             StretchingModel::FiniteUniform,
@@ -427,6 +448,7 @@ pub fn propose_phases(
         StretchingModel::TwoEvents => two_chi2,
         StretchingModel::TwoLayer => two_layer_chi2,
         StretchingModel::FiniteUniform => finite_uniform.map(|f| f.chi_square),
+        StretchingModel::PostRiftOnly => post_rift_chi2,
         StretchingModel::FiniteTwoLayer => finite_two_layer.map(|f| f.chi_square),
     };
     scores.misfit_scale = misfit_scale(chosen_chi2.unwrap_or(0.0), n, model.parameters());
@@ -434,6 +456,7 @@ pub fn propose_phases(
         StretchingModel::NoRift => None,
         StretchingModel::TwoEvents => two,
         StretchingModel::Uniform | StretchingModel::TwoLayer => Some(one),
+        StretchingModel::PostRiftOnly => post_rift.clone(),
         // The closed-form uniform fit at the finite event's timing carries the phases,
         // the ranges and the tables; the finite fit itself rides in `finite`.
         StretchingModel::FiniteUniform | StretchingModel::FiniteTwoLayer => {
@@ -474,10 +497,61 @@ pub fn propose_phases(
         _ => None,
     };
     proposal.alternatives = alternatives;
+    if model == StretchingModel::PostRiftOnly {
+        proposal.post_rift_factor_span = post_rift_fit.map(|p| p.1);
+    }
     proposal.warnings =
         proposal_warnings(&proposal, observations, &subsidence_sigmas_m(observations));
     Ok(proposal)
 }
+
+/// The post-rift-only model: thermal subsidence from an instantaneous uniform rift at
+/// age t0 at or before the oldest surface, `Y(age) = Y0 + S_T(beta, t0 - age)`, beta and
+/// Y0 fitted for each t0 on a grid reaching [`POST_RIFT_LOOKBACK_MYR`] before the oldest
+/// surface. The curve hardly tells an old strong rift from a young weak one (beta 1.5 to
+/// 8 within the noise on a test well), so of the rift ages whose chi^2 is within
+/// [`BIC_EVIDENCE`] of the best, the youngest (the least factor) is reported, with the
+/// span of factors they give. Returned as a uniform fit whose event ends at t0 (its
+/// initial subsidence folded into Y0), so curves, heat flow and ranges follow from it.
+/// None for a series too short or a fit that fails.
+fn post_rift_only(
+    lithosphere: &Lithosphere,
+    observations: &[SubsidenceObservation],
+    sigmas: &[f64],
+) -> Option<(UniformFit, (f64, f64))> {
+    let oldest = observations[0].age_ma;
+    let fits: Vec<(UniformFit, f64)> = (0..POST_RIFT_GRID)
+        .filter_map(|i| {
+            let t0 = oldest + POST_RIFT_LOOKBACK_MYR * i as f64 / (POST_RIFT_GRID - 1) as f64;
+            // A rift 1 kyr long ending at t0: all of the well is post-rift.
+            let fit = super::fit::fit_uniform(
+                lithosphere,
+                observations,
+                SubsidenceCurve::Best,
+                t0 + 1e-3,
+                t0,
+            )
+            .ok()?;
+            let chi2 = uniform_chi_square(lithosphere, observations, sigmas, &fit);
+            (fit.events[0].beta < AT_BOUND).then_some((fit, chi2))
+        })
+        .collect();
+    let best = fits.iter().map(|f| f.1).fold(f64::INFINITY, f64::min);
+    let equally: Vec<&(UniformFit, f64)> =
+        fits.iter().filter(|f| f.1 - best <= BIC_EVIDENCE).collect();
+    let betas = equally.iter().map(|f| f.0.events[0].beta);
+    let span = (
+        betas.clone().fold(f64::INFINITY, f64::min),
+        betas.fold(f64::NEG_INFINITY, f64::max),
+    );
+    // Youngest rift age first on the grid.
+    equally.first().map(|f| (f.0.clone(), span))
+}
+
+/// How far before the oldest surface a post-rift-only well's rift may lie (Myr), and the
+/// grid of rift ages tried.
+pub const POST_RIFT_LOOKBACK_MYR: f64 = 60.0;
+const POST_RIFT_GRID: usize = 13;
 
 /// A factor within this of [`super::fit::MAX_STRETCHING_FACTOR`] is at its bound.
 const AT_BOUND: f64 = super::fit::MAX_STRETCHING_FACTOR * (1.0 - 1e-6);
@@ -703,6 +777,11 @@ fn proposal_warnings(
             }
         }
     }
+    if let Some((low, high)) = proposal.post_rift_factor_span {
+        warnings.push(format!(
+            "post-rift only: the well begins after its rift, whose age the well cannot date; factors from {low:.2} (rift at the oldest surface, shown) to {high:.2} (rift up to {POST_RIFT_LOOKBACK_MYR:.0} Myr earlier) fit equally well"
+        ));
+    }
     if observations.len() < 2 * proposal.model.parameters() {
         warnings.push(format!(
             "{} surfaces for a model of {} parameters: the fit is poorly constrained",
@@ -797,7 +876,10 @@ fn assemble(
         observations[observations.len() - 1].age_ma,
     );
     let mut intervals = Vec::new();
+    // Intervals are clipped to the well: a post-rift-only well's rift lies before its
+    // oldest surface.
     let mut push = |phase, from_ma: f64, to_ma: f64| {
+        let (from_ma, to_ma) = (from_ma.min(oldest), to_ma.max(youngest));
         if from_ma > to_ma {
             intervals.push(PhaseInterval {
                 phase,
@@ -847,6 +929,7 @@ fn assemble(
         alternatives: Vec::new(),
         warnings: Vec::new(),
         finite: None,
+        post_rift_factor_span: None,
     }
 }
 

@@ -391,3 +391,60 @@ fn uplift_and_poor_fits_are_warned_about() {
     );
     assert!(p.scores.misfit_scale > POOR_FIT_SCALE);
 }
+
+/// A well that begins after its rift (a thermal sag): post-rift only, not a syn-rift.
+/// Built by the numerical plate (a 10 Myr rift from 200 to 190 Ma, beta 1.8; surfaces
+/// from 180 Ma): the model, the true factor inside the reported span, and today's basal
+/// heat flow within 5 % of the plate's.
+#[test]
+fn a_well_that_starts_after_its_rift_is_post_rift_only() {
+    use crate::numerical_lithosphere::*;
+    let l = mckenzie();
+    let mut ages: Vec<f64> = surface_ages(180.0, &[]);
+    ages.sort_by(|a, b| b.total_cmp(a));
+    let event = StretchingEvent::uniform(200.0, 190.0, 1.8);
+    let well = numerical_well(&[event], &ages);
+    let p = propose_phases(&l, &well).unwrap();
+    assert_eq!(
+        p.model,
+        StretchingModel::PostRiftOnly,
+        "{:?}",
+        p.alternatives
+    );
+    assert!(
+        p.intervals.iter().all(|i| i.phase == Phase::PostRift),
+        "{:?}",
+        p.intervals
+    );
+    // The thermal curve alone hardly tells an old strong rift from a young weak one: the
+    // proposal reports the span of factors that fit equally and warns.
+    let (low, high) = p.post_rift_factor_span.expect("a span");
+    assert!(low < 1.8 && 1.8 < high, "1.8 outside {low}..{high}");
+    assert!(
+        p.warnings.iter().any(|w| w.contains("post-rift only")),
+        "{:?}",
+        p.warnings
+    );
+    let fit = p.uniform.as_ref().unwrap();
+    assert_eq!(
+        fit.events[0].beta, low,
+        "the rift placed at the base, the least factor"
+    );
+    let truth = run_plate(
+        &l,
+        &CrustalHeatProduction::NONE,
+        &[event],
+        IsostasyConvention::McKenzie,
+        &NumericalSettings::default(),
+        &[0.0],
+        false,
+    )
+    .unwrap();
+    let today = crate::heat_flow::uniform_heat_flow_mw_m2(&l, fit, 0.0);
+    assert_relative(
+        today,
+        truth.states[0].surface_heat_flow_mw_m2,
+        0.05,
+        "basal heat flow today",
+    );
+}

@@ -103,6 +103,15 @@ pub fn interpret(
         )?),
         None => None,
     };
+    // A post-rift-only well's factor is as uncertain as its rift's age: the range holds
+    // every factor that fits equally well.
+    let uncertainty = uncertainty.map(|mut u| {
+        if let Some((low, high)) = proposal.post_rift_factor_span {
+            u.combined_min = u.combined_min.min(low);
+            u.combined_max = u.combined_max.max(high);
+        }
+        u
+    });
     let ages: Vec<f64> = obs.iter().map(|o| o.age_ma).collect();
     let oldest = ages[0];
     let youngest = ages[ages.len() - 1];
@@ -485,6 +494,7 @@ pub fn model_key(model: phases::StretchingModel) -> &'static str {
         phases::StretchingModel::TwoLayer => "two-layer",
         phases::StretchingModel::FiniteUniform => "uniform-finite",
         phases::StretchingModel::FiniteTwoLayer => "two-layer-finite",
+        phases::StretchingModel::PostRiftOnly => "post-rift-only",
     }
 }
 
