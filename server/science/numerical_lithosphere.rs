@@ -381,6 +381,8 @@ struct Plate {
     surface_rate: f64,
     scratch: Vec<f64>,
     previous: Vec<f64>,
+    /// The factored heat-step matrix of the last step length used.
+    factored: Option<Factored>,
 }
 
 impl Plate {
@@ -413,6 +415,7 @@ impl Plate {
             surface_rate: 0.0,
             scratch: vec![0.0; nodes],
             previous: vec![0.0; nodes],
+            factored: None,
         };
         plate.update_source();
         plate.solve_steady();
@@ -559,23 +562,22 @@ impl Plate {
     fn implicit_step(&mut self, h: f64, theta: f64) {
         let n = self.nodes();
         let r = self.kappa * h / (self.dz * self.dz);
-        let rhs: Vec<f64> = (0..n)
-            .map(|i| match i {
-                0 => 0.0,
-                i if i == n - 1 => self.t1,
-                i => {
-                    let lap = self.t[i - 1] - 2.0 * self.t[i] + self.t[i + 1];
-                    self.t[i] + (1.0 - theta) * r * lap + h * self.source[i]
-                }
-            })
-            .collect();
-        self.t = solve_tridiagonal(
-            -theta * r,
-            1.0 + 2.0 * theta * r,
-            -theta * r,
-            &rhs,
-            &mut self.scratch,
-        );
+        let off = -theta * r;
+        // The matrix is the same for every step of one length: factor it once (the
+        // Thomas sweep's multipliers), then each step is two passes without a division.
+        if self.factored.as_ref().is_none_or(|f| f.off != off) {
+            self.factored = Some(Factored::new(off, 1.0 + 2.0 * theta * r, n));
+        }
+        let f = self.factored.as_ref().expect("factored above");
+        // Right-hand side into `previous` (free between stretches), then solved into `t`.
+        let rhs = &mut self.previous;
+        rhs[0] = 0.0;
+        rhs[n - 1] = self.t1;
+        for (i, value) in rhs.iter_mut().enumerate().take(n - 1).skip(1) {
+            let lap = self.t[i - 1] - 2.0 * self.t[i] + self.t[i + 1];
+            *value = self.t[i] + (1.0 - theta) * r * lap + h * self.source[i];
+        }
+        f.solve(rhs, &mut self.t);
     }
 
     fn state(&self, age_ma: f64, with_geotherm: bool) -> PlateState {
@@ -624,6 +626,44 @@ fn interpolate(v: &[f64], x: f64) -> f64 {
     -a * w * (w - 1.0) * (w - 2.0) / 6.0 + b * (w + 1.0) * (w - 1.0) * (w - 2.0) / 2.0
         - c * (w + 1.0) * w * (w - 2.0) / 2.0
         + d * (w + 1.0) * w * (w - 1.0) / 6.0
+}
+
+/// A factored tridiagonal matrix with constant off-diagonals `off` and diagonal `diag`
+/// on interior rows and identity rows at both ends: the Thomas sweep's upper
+/// multipliers and inverse pivots.
+struct Factored {
+    off: f64,
+    upper: Vec<f64>,
+    inverse_pivot: Vec<f64>,
+}
+
+impl Factored {
+    fn new(off: f64, diag: f64, n: usize) -> Self {
+        let (mut upper, mut inverse_pivot) = (vec![0.0; n], vec![1.0; n]);
+        for i in 1..n - 1 {
+            let m = diag - off * upper[i - 1];
+            inverse_pivot[i] = 1.0 / m;
+            upper[i] = off / m;
+        }
+        Factored {
+            off,
+            upper,
+            inverse_pivot,
+        }
+    }
+
+    /// Solve for `x` with the right-hand side `rhs` (Dirichlet values at both ends).
+    fn solve(&self, rhs: &[f64], x: &mut [f64]) {
+        let n = rhs.len();
+        x[0] = rhs[0];
+        for i in 1..n - 1 {
+            x[i] = (rhs[i] - self.off * x[i - 1]) * self.inverse_pivot[i];
+        }
+        x[n - 1] = rhs[n - 1];
+        for i in (1..n - 1).rev() {
+            x[i] -= self.upper[i] * x[i + 1];
+        }
+    }
 }
 
 /// Solve the tridiagonal system with constant off-diagonals `lower`, `upper` and
