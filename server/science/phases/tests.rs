@@ -217,9 +217,18 @@ fn a_pick_off_the_surface_ages_is_fitted_too() {
 /// A well made by the numerical lithosphere (finite-rate stretching, physics the
 /// closed-form fit does not share), sampled at the surface ages, with a deterministic
 /// +-20 m scatter and +-60 m water-depth ranges.
-fn numerical_well(
+pub(crate) fn numerical_well(
     events: &[crate::numerical_lithosphere::StretchingEvent],
     ages: &[f64],
+) -> Vec<SubsidenceObservation> {
+    numerical_well_above(events, ages, 0.0)
+}
+
+/// [`numerical_well`] with the basement `y0` m below sea level before the rift.
+pub(crate) fn numerical_well_above(
+    events: &[crate::numerical_lithosphere::StretchingEvent],
+    ages: &[f64],
+    y0: f64,
 ) -> Vec<SubsidenceObservation> {
     use crate::numerical_lithosphere::*;
     let history = run_plate(
@@ -237,7 +246,7 @@ fn numerical_well(
         .iter()
         .enumerate()
         .map(|(i, s)| {
-            let y = s.subsidence_m + 20.0 * (((i * 37) % 7) as f64 / 3.0 - 1.0);
+            let y = y0 + s.subsidence_m + 20.0 * (((i * 37) % 7) as f64 / 3.0 - 1.0);
             SubsidenceObservation {
                 age_ma: s.age_ma,
                 tectonic_subsidence: Bounds {
