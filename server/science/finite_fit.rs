@@ -134,8 +134,8 @@ fn fit_from(
         .filter(|&a| a <= onset_ma)
         .collect();
     let skipped = observations.len() - ages.len();
-    // (chi^2, Y0, RSS) of the event with these factors: one run of the plate.
-    let evaluate = |delta: f64, beta: f64| -> Result<(f64, f64, f64), ScienceError> {
+    // The model subsidence at every observation (0 before the onset): one run of the plate.
+    let model_curve = |delta: f64, beta: f64| -> Result<Vec<f64>, ScienceError> {
         let event = StretchingEvent {
             onset_ma,
             end_ma,
@@ -151,18 +151,18 @@ fn fit_from(
             &ages,
             false,
         )?;
-        let model = |i: usize| {
-            if i < skipped {
-                0.0
-            } else {
-                history.states[i - skipped].subsidence_m
-            }
-        };
-        let (chi2, y0) = chi_square_and_y0(observations, sigmas, model);
+        let mut curve = vec![0.0; skipped];
+        curve.extend(history.states.iter().map(|s| s.subsidence_m));
+        Ok(curve)
+    };
+    // (chi^2, Y0, RSS) of the event with these factors.
+    let evaluate = |delta: f64, beta: f64| -> Result<(f64, f64, f64), ScienceError> {
+        let curve = model_curve(delta, beta)?;
+        let (chi2, y0) = chi_square_and_y0(observations, sigmas, |i| curve[i]);
         let rss = observations
             .iter()
-            .enumerate()
-            .map(|(i, o)| (o.tectonic_subsidence.best - y0 - model(i)).powi(2))
+            .zip(&curve)
+            .map(|(o, m)| (o.tectonic_subsidence.best - y0 - m).powi(2))
             .sum();
         Ok((chi2, y0, rss))
     };
@@ -204,35 +204,14 @@ fn fit_from(
         // long and narrow, which defeats coordinate-wise searches and costs nested scans
         // a thousand runs of the plate; this takes a few dozen.
         let residuals = |ud: f64, ub: f64| -> Option<Vec<f64>> {
-            let history = run_plate(
-                lithosphere,
-                &CrustalHeatProduction::NONE,
-                &[StretchingEvent {
-                    onset_ma,
-                    end_ma,
-                    crust_factor: factor_from_u(ud),
-                    mantle_factor: factor_from_u(ub),
-                }],
-                IsostasyConvention::McKenzie,
-                &FIT_RESOLUTION,
-                &ages,
-                false,
-            )
-            .ok()?;
-            let model = |i: usize| {
-                if i < skipped {
-                    0.0
-                } else {
-                    history.states[i - skipped].subsidence_m
-                }
-            };
-            let (_, y0) = chi_square_and_y0(observations, sigmas, model);
+            let curve = model_curve(factor_from_u(ud), factor_from_u(ub)).ok()?;
+            let (_, y0) = chi_square_and_y0(observations, sigmas, |i| curve[i]);
             Some(
                 observations
                     .iter()
                     .zip(sigmas)
-                    .enumerate()
-                    .map(|(i, (o, s))| (o.tectonic_subsidence.best - y0 - model(i)) / s)
+                    .zip(&curve)
+                    .map(|((o, s), m)| (o.tectonic_subsidence.best - y0 - m) / s)
                     .collect(),
             )
         };

@@ -5,38 +5,15 @@
 //! numerical_lithosphere_tests.rs.
 
 use super::*;
-use crate::Bounds;
 use crate::fit::tests::mckenzie;
 use crate::phases::subsidence_sigmas_m as sigmas;
+use crate::phases::tests::numerical_well_above;
 
+/// A well made by the plate at its default resolution, 50 m deep before the rift,
+/// surfaces every 5 Myr from 200 Ma, with the phase tests' scatter and ranges.
 fn well(event: StretchingEvent) -> Vec<SubsidenceObservation> {
     let ages: Vec<f64> = (0..=40).map(|i| 200.0 - 5.0 * i as f64).collect();
-    let history = run_plate(
-        &mckenzie(),
-        &CrustalHeatProduction::NONE,
-        &[event],
-        IsostasyConvention::McKenzie,
-        &NumericalSettings::default(),
-        &ages,
-        false,
-    )
-    .unwrap();
-    history
-        .states
-        .iter()
-        .enumerate()
-        .map(|(i, s)| {
-            let y = 50.0 + s.subsidence_m + 20.0 * (((i * 37) % 7) as f64 / 3.0 - 1.0);
-            SubsidenceObservation {
-                age_ma: s.age_ma,
-                tectonic_subsidence: Bounds {
-                    min: y - 60.0,
-                    best: y,
-                    max: y + 60.0,
-                },
-            }
-        })
-        .collect()
+    numerical_well_above(&[event], &ages, 50.0)
 }
 
 #[test]
