@@ -126,6 +126,16 @@ impl ServeArgs {
     pub fn may_create(&self) -> bool {
         self.db.is_none() || self.create
     }
+
+    /// The options the server runs with.
+    pub fn options(&self) -> crate::server::ServeOptions {
+        crate::server::ServeOptions {
+            bind: self.bind,
+            db_path: self.db_path(),
+            may_create: self.may_create(),
+            empty: self.empty,
+        }
+    }
 }
 
 impl Default for ServeArgs {
@@ -168,7 +178,7 @@ fn serve_blocking(args: ServeArgs) -> ExitCode {
         Ok(rt) => rt,
         Err(code) => return code,
     };
-    match runtime.block_on(crate::server::run(args)) {
+    match runtime.block_on(crate::server::run(args.options())) {
         Ok(()) => ExitCode::SUCCESS,
         Err(e) => {
             eprintln!("error: {e:#}");

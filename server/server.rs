@@ -1,26 +1,39 @@
 //! Starting and stopping the web server.
 
-use crate::cli::ServeArgs;
 use crate::services::accounts;
 use crate::{demo, store, web};
 use anyhow::Context;
 use std::net::SocketAddr;
+use std::path::PathBuf;
 use tokio::net::TcpListener;
+
+/// What `sagline serve` was asked to do, already resolved from the command line.
+#[derive(Debug, Clone)]
+pub struct ServeOptions {
+    /// Address to listen on.
+    pub bind: SocketAddr,
+    /// The study database.
+    pub db_path: PathBuf,
+    /// Whether a missing database may be created.
+    pub may_create: bool,
+    /// A new database starts without the demo study.
+    pub empty: bool,
+}
 
 /// Open the database (creating it when the default path is missing, or a missing
 /// `--db` with `--create`), seed the demo study into a new one unless `--empty`, create
 /// the first admin account if there is no account yet (its password is printed once),
-/// then serve until Ctrl-C.
-pub async fn run(args: ServeArgs) -> anyhow::Result<()> {
-    let path = args.db_path();
+/// then serve until Ctrl-C or SIGTERM.
+pub async fn run(args: ServeOptions) -> anyhow::Result<()> {
+    let path = args.db_path.clone();
     let is_new = !path.exists();
-    if is_new && !args.may_create() {
+    if is_new && !args.may_create {
         anyhow::bail!(
             "no database at {}; pass --create to start a new one (or check the path)",
             path.display()
         );
     }
-    let db = store::open_or_create(&path, args.may_create())
+    let db = store::open_or_create(&path, args.may_create)
         .await
         .with_context(|| format!("cannot open the database {}", path.display()))?;
     if is_new && !args.empty {
@@ -83,8 +96,31 @@ fn display_addr(addr: SocketAddr) -> String {
     }
 }
 
+/// Ctrl-C or SIGTERM (what `kill`, systemd and container runtimes send): either one
+/// finishes the open requests, closes the live streams and the database, and stops.
 async fn shutdown_signal() {
-    if tokio::signal::ctrl_c().await.is_ok() {
-        tracing::info!("Ctrl-C received; finishing open requests and stopping");
+    let ctrl_c = async {
+        if tokio::signal::ctrl_c().await.is_err() {
+            // No Ctrl-C handler could be installed: rely on SIGTERM alone.
+            std::future::pending::<()>().await;
+        }
+    };
+    #[cfg(unix)]
+    let terminate = async {
+        match tokio::signal::unix::signal(tokio::signal::unix::SignalKind::terminate()) {
+            Ok(mut s) => {
+                s.recv().await;
+            }
+            Err(e) => {
+                tracing::warn!(error = %e, "cannot listen for SIGTERM; only Ctrl-C stops the server cleanly");
+                std::future::pending::<()>().await;
+            }
+        }
+    };
+    #[cfg(not(unix))]
+    let terminate = std::future::pending::<()>();
+    tokio::select! {
+        () = ctrl_c => tracing::info!("Ctrl-C received; finishing open requests and stopping"),
+        () = terminate => tracing::info!("SIGTERM received; finishing open requests and stopping"),
     }
 }

@@ -1063,3 +1063,68 @@ fn serve_without_db_creates_the_default_demo_database() {
         });
     assert_eq!(studies.len(), 1, "the demo study: {studies:?}");
 }
+
+/// `kill PID` (SIGTERM) is what service managers and container runtimes send: it must
+/// stop the server as cleanly as Ctrl-C, with a zero exit status and the log saying why.
+#[cfg(unix)]
+#[test]
+fn sigterm_stops_the_server_cleanly() {
+    use std::io::{BufRead, BufReader};
+    let ws = Workspace::new();
+    let mut child = Command::new(env!("CARGO_BIN_EXE_sagline"))
+        .args([
+            "serve",
+            "--create",
+            "--empty",
+            "--bind",
+            "127.0.0.1:0",
+            "--db",
+        ])
+        .arg(ws.path("term.db"))
+        .env("RUST_LOG", "info")
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .expect("start the server binary");
+    let mut stdout = BufReader::new(child.stdout.take().expect("stdout"));
+    let mut seen = Vec::new();
+    let mut line = String::new();
+    while stdout
+        .read_line(&mut line)
+        .expect("read the server's output")
+        > 0
+    {
+        let serving = line.starts_with("Sagline is serving");
+        seen.push(std::mem::take(&mut line));
+        if serving {
+            break;
+        }
+    }
+    assert!(
+        seen.iter().any(|l| l.starts_with("Sagline is serving")),
+        "the server never said it was serving: {seen:?}"
+    );
+    let status = Command::new("kill")
+        .args(["-TERM", &child.id().to_string()])
+        .status()
+        .expect("run kill");
+    assert!(status.success(), "kill -TERM failed");
+    // The rest of the output up to the end of the process.
+    for l in stdout.lines() {
+        seen.push(l.expect("read the server's output"));
+    }
+    let exit = child.wait().expect("wait for the server");
+    let log = seen.concat();
+    assert!(
+        exit.success(),
+        "exit status {exit:?} after SIGTERM; output:\n{log}"
+    );
+    assert!(
+        log.contains("SIGTERM received"),
+        "no SIGTERM line in:\n{log}"
+    );
+    assert!(
+        log.contains("stopped"),
+        "the server did not log a clean stop:\n{log}"
+    );
+}

@@ -7,6 +7,8 @@
 //! eustatic sea level of that age.
 
 use super::burial::{self, StepKind};
+// The restored column's pieces are burial's; they are part of a history step too.
+pub use super::burial::{HorizonDepth, RestoredUnit};
 use super::column::{Bounds, SeaLevelCurve, WellColumn};
 use super::lithology::Catalogue;
 use super::{ModelParameters, ScienceError};
@@ -113,27 +115,6 @@ impl HistoryStep {
             .find(|h| h.horizon == horizon)
             .map(|h| h.depth_m)
     }
-}
-
-/// One unit of a restored column, depths below the depositional surface.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct RestoredUnit {
-    /// Unit `i` lies between surfaces `i` and `i + 1`; an eroded section with `unit = i`
-    /// was laid down on surface `i` with unit `i`'s lithology.
-    pub unit: usize,
-    pub eroded_section: bool,
-    pub top_m: f64,
-    pub base_m: f64,
-    pub mean_porosity: f64,
-    pub density_kg_m3: f64,
-}
-
-/// A horizon's burial depth below the depositional surface at one age.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct HorizonDepth {
-    /// Index into [`WellHistory::horizons`].
-    pub horizon: usize,
-    pub depth_m: f64,
 }
 
 impl WellHistory {

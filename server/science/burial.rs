@@ -16,14 +16,35 @@
 //! sediment accumulates, docs/science.md 2.2), and this reduces to plain decompaction.
 
 use super::ScienceError;
-use super::backstrip::{HorizonDepth, RestoredUnit};
 use super::column::{Erosion, WellColumn};
 use super::decompaction::{decompacted_thickness_from, layer_density, solid_thickness};
 use super::lithology::Catalogue;
+use serde::Serialize;
 
 /// A past burial this much deeper than today's (m) is reported to the user; smaller
 /// differences are within the printed precision of depths (mm) and go unmentioned.
 const OVER_COMPACTION_NOTICE_M: f64 = 1e-3;
+
+/// One unit of a restored column, depths below the depositional surface.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct RestoredUnit {
+    /// Unit `i` lies between surfaces `i` and `i + 1`; an eroded section with `unit = i`
+    /// was laid down on surface `i` with unit `i`'s lithology.
+    pub unit: usize,
+    pub eroded_section: bool,
+    pub top_m: f64,
+    pub base_m: f64,
+    pub mean_porosity: f64,
+    pub density_kg_m3: f64,
+}
+
+/// A horizon's burial depth below the depositional surface at one age.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct HorizonDepth {
+    /// Index into the well's horizons, surface order (`WellHistory::horizons`).
+    pub horizon: usize,
+    pub depth_m: f64,
+}
 
 /// Which age a restored column belongs to.
 #[derive(Debug, Clone, Copy, PartialEq)]
