@@ -6,7 +6,7 @@
 //! across a straight trough axis, the rift onset changes linearly along the axis and
 //! the rift end with the same Gaussian weight as beta.
 
-use sagline_science::{LithologyMix, MixPart, SeaLevelPoint, WaterDepth};
+use sagline_science::{LithologyMix, SeaLevelPoint, WaterDepth};
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
@@ -280,27 +280,8 @@ pub fn water_depth(min_m: f64, max_m: f64, horizon: &str) -> Result<WaterDepth, 
     WaterDepth::new(min_m, max_m).map_err(|e| format!("horizon '{horizon}': {e}"))
 }
 
-/// Read a lithology in the tops format: a name, or `name:percent;name:percent`.
+/// Read a lithology in the tops format (the mix's one parser), naming the basin file's text.
 pub fn parse_mix(text: &str) -> Result<LithologyMix, String> {
-    let parts: Vec<&str> = text.split(';').map(str::trim).collect();
-    if parts.len() == 1 && !parts[0].contains(':') {
-        return Ok(LithologyMix::single(parts[0]));
-    }
-    let parts = parts
-        .iter()
-        .map(|p| {
-            let (name, percent) = p
-                .split_once(':')
-                .ok_or_else(|| format!("lithology '{text}': '{p}' needs name:percent"))?;
-            let percent: f64 = percent
-                .trim()
-                .parse()
-                .map_err(|_| format!("lithology '{text}': '{percent}' is not a number"))?;
-            Ok(MixPart {
-                lithology: name.trim().to_string(),
-                fraction: percent / 100.0,
-            })
-        })
-        .collect::<Result<Vec<_>, String>>()?;
-    Ok(LithologyMix { parts })
+    text.parse()
+        .map_err(|e: sagline_science::MixSyntaxError| format!("lithology '{text}': {e}"))
 }

@@ -92,16 +92,103 @@ impl LithologyMix {
         }
     }
 
-    /// The text form used in the tops CSV: `shale` or `shale:60;sandstone:40`.
+    /// The text form used in the tops CSV and in the store: `shale` or
+    /// `shale:60;sandstone:40` (the same as `to_string()`; read back with `parse()`).
     pub fn label(&self) -> String {
-        if self.parts.len() == 1 {
-            return self.parts[0].lithology.clone();
+        self.to_string()
+    }
+}
+
+impl std::fmt::Display for LithologyMix {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        if let [only] = self.parts.as_slice() {
+            return f.write_str(&only.lithology);
         }
-        self.parts
-            .iter()
-            .map(|p| format!("{}:{}", p.lithology, trim_number(p.fraction * 100.0)))
-            .collect::<Vec<_>>()
-            .join(";")
+        for (i, p) in self.parts.iter().enumerate() {
+            if i > 0 {
+                f.write_str(";")?;
+            }
+            write!(f, "{}:{}", p.lithology, trim_number(p.fraction * 100.0))?;
+        }
+        Ok(())
+    }
+}
+
+/// How far a mix's percentages may sum from 100 (percentage points).
+pub const MIX_SUM_TOLERANCE_PERCENT: f64 = 0.01;
+
+/// Why a lithology text is not a mix, in words that say how to write one.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[error("{0}")]
+pub struct MixSyntaxError(pub String);
+
+/// The one reader of the lithology text form: one name (`shale`), or parts
+/// `name:percent` separated by `;` (a `%` after the number is allowed) whose
+/// percentages sum to 100 within [`MIX_SUM_TOLERANCE_PERCENT`]. Names are kept as
+/// written (matching them to a catalogue is the caller's business); fractions are
+/// the percentages divided by their sum, so they sum to 1.
+impl std::str::FromStr for LithologyMix {
+    type Err = MixSyntaxError;
+
+    fn from_str(text: &str) -> Result<Self, Self::Err> {
+        let err = |m: String| Err(MixSyntaxError(m));
+        let text = text.trim();
+        if !text.contains([':', ';']) {
+            if text.is_empty() {
+                return err("the lithology is empty".into());
+            }
+            return Ok(LithologyMix::single(text));
+        }
+        let shape = "write name:percent parts separated by ';', e.g. shale:60;sandstone:40";
+        let mut parts: Vec<(&str, f64)> = Vec::new();
+        for part in text.split(';').map(str::trim).filter(|p| !p.is_empty()) {
+            let Some((name, percent)) = part.split_once(':') else {
+                return err(format!(
+                    "\"{text}\": the part \"{part}\" has no percentage; {shape}"
+                ));
+            };
+            let name = name.trim();
+            if name.is_empty() {
+                return err(format!(
+                    "\"{text}\": the part \"{part}\" has no lithology name; {shape}"
+                ));
+            }
+            let percent_text = percent.trim().trim_end_matches('%').trim_end();
+            let percent = match percent_text.parse::<f64>() {
+                Ok(p) if p.is_finite() && p > 0.0 && p <= 100.0 => p,
+                _ => {
+                    return err(format!(
+                        "\"{text}\": the percentage of {name} must be a number above 0 and at most 100, not \"{}\"",
+                        percent.trim()
+                    ));
+                }
+            };
+            if parts.iter().any(|(n, _)| n.eq_ignore_ascii_case(name)) {
+                return err(format!("\"{text}\": {name} appears twice in the mix"));
+            }
+            parts.push((name, percent));
+        }
+        if parts.is_empty() {
+            return err(format!("\"{text}\" names no lithology; {shape}"));
+        }
+        let sum: f64 = parts.iter().map(|(_, p)| p).sum();
+        // The slack keeps a sum that is off by exactly the tolerance as printed
+        // (33.33 x 3 = 99.99) from failing on binary rounding.
+        if (sum - 100.0).abs() > MIX_SUM_TOLERANCE_PERCENT + 1e-9 {
+            return err(format!(
+                "the mix percentages in \"{text}\" sum to {}, not 100",
+                trim_number(sum)
+            ));
+        }
+        Ok(LithologyMix {
+            parts: parts
+                .into_iter()
+                .map(|(name, percent)| MixPart {
+                    lithology: name.to_string(),
+                    fraction: percent / sum,
+                })
+                .collect(),
+        })
     }
 }
 
@@ -376,5 +463,44 @@ mod tests {
             ],
         };
         assert_eq!(m.label(), "shale:60;sandstone:40");
+    }
+
+    #[test]
+    fn the_text_form_reads_back_to_the_same_mix() {
+        // Written by hand: 3 parts of one third each print as 33.3333 and must read back
+        // within the sum tolerance, to fractions that sum to one.
+        let m: LithologyMix = "shale:33.3333;sandstone:33.3333;limestone:33.3333"
+            .parse()
+            .unwrap();
+        let total: f64 = m.parts.iter().map(|p| p.fraction).sum();
+        assert!((total - 1.0).abs() < 1e-12, "{total}");
+        let again: LithologyMix = m.to_string().parse().unwrap();
+        assert_eq!(again.parts.len(), 3);
+        for (a, b) in m.parts.iter().zip(&again.parts) {
+            assert_eq!(a.lithology, b.lithology);
+            assert!((a.fraction - b.fraction).abs() < 1e-9);
+        }
+        assert_eq!(
+            "shale".parse::<LithologyMix>(),
+            Ok(LithologyMix::single("shale"))
+        );
+        assert_eq!(LithologyMix::single("shale").to_string(), "shale");
+    }
+
+    #[test]
+    fn a_bad_percentage_is_an_error_and_never_read_as_the_whole_unit() {
+        // The store's old reader took "shale:abc" as 100 % shale.
+        for text in [
+            "shale:abc",
+            "shale:60;sandstone",
+            "shale:60;sandstone:30",
+            ":40;x:60",
+            "",
+        ] {
+            assert!(
+                text.parse::<LithologyMix>().is_err(),
+                "{text:?} was accepted"
+            );
+        }
     }
 }

@@ -35,8 +35,8 @@ pub mod two_layer;
 pub mod uncertainty;
 
 pub use column::{
-    Bounds, Erosion, LithologyMix, MixPart, SeaLevelCurve, SeaLevelPoint, Surface, WaterDepth,
-    WellColumn,
+    Bounds, Erosion, LithologyMix, MixPart, MixSyntaxError, SeaLevelCurve, SeaLevelPoint, Surface,
+    WaterDepth, WellColumn,
 };
 pub use error::ScienceError;
 pub use params::ModelParameters;

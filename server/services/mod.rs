@@ -285,6 +285,17 @@ pub fn well_column(
     name: &str,
     rows: &[store::wells::SurfaceRow],
 ) -> Result<sagline_science::WellColumn, ServiceError> {
-    sagline_science::WellColumn::new(name, rows.iter().map(|r| r.to_surface()).collect())
+    let surfaces = rows
+        .iter()
+        .map(|r| {
+            r.to_surface().map_err(|e| {
+                ServiceError::Invalid(format!(
+                    "the stored lithology of well {name}, horizon {}: {e}",
+                    r.horizon
+                ))
+            })
+        })
+        .collect::<Result<Vec<_>, _>>()?;
+    sagline_science::WellColumn::new(name, surfaces)
         .map_err(|e| ServiceError::Invalid(e.to_string()))
 }

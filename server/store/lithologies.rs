@@ -1,6 +1,7 @@
 //! The per-study lithology catalogue.
 
 use super::StoreResult;
+use sagline_science::LithologyMix;
 use serde::{Deserialize, Serialize};
 use sqlx::{FromRow, SqliteConnection, SqliteExecutor};
 
@@ -85,13 +86,16 @@ pub async fn usage_count(
     let n = labels
         .iter()
         .filter(|label| {
-            label.split(';').any(|part| {
-                part.split(':')
-                    .next()
-                    .unwrap_or("")
-                    .trim()
-                    .eq_ignore_ascii_case(name)
-            })
+            // A label that does not read is counted as a use: refusing a deletion is
+            // the safe side.
+            label
+                .parse::<LithologyMix>()
+                .map(|mix| {
+                    mix.parts
+                        .iter()
+                        .any(|p| p.lithology.eq_ignore_ascii_case(name))
+                })
+                .unwrap_or(true)
         })
         .count();
     Ok(n as i64)

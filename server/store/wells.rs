@@ -1,7 +1,7 @@
 //! Wells and their surfaces (formation tops).
 
 use super::StoreResult;
-use sagline_science::{Erosion, LithologyMix, MixPart, Surface, WaterDepth};
+use sagline_science::{Erosion, LithologyMix, MixSyntaxError, Surface, WaterDepth};
 use serde::Serialize;
 use sqlx::{FromRow, QueryBuilder, Sqlite, SqliteConnection, SqliteExecutor};
 
@@ -47,14 +47,15 @@ pub struct SurfaceRow {
 }
 
 impl SurfaceRow {
-    /// Back to the science type. Stored rows were validated on the way in; a mix
-    /// label is split the same way the input layer wrote it.
-    pub fn to_surface(&self) -> Surface {
-        Surface {
+    /// Back to the science type. Stored rows were validated on the way in and the
+    /// lithology is stored in the mix's own text form, read back with its one parser;
+    /// a label that does not read (an edited database) is an error, never a guess.
+    pub fn to_surface(&self) -> Result<Surface, MixSyntaxError> {
+        Ok(Surface {
             horizon: self.horizon.clone(),
             depth_m: self.depth_m,
             age_ma: self.age_ma,
-            lithology_below: self.lithology.as_deref().map(parse_stored_mix),
+            lithology_below: self.lithology.as_deref().map(str::parse).transpose()?,
             water_depth: WaterDepth {
                 min_m: self.water_depth_min_m,
                 max_m: self.water_depth_max_m,
@@ -66,26 +67,8 @@ impl SurfaceRow {
                 }),
                 _ => None,
             },
-        }
-    }
-}
-
-/// Split a stored label (`shale` or `shale:60;sandstone:40`) into its parts.
-fn parse_stored_mix(label: &str) -> LithologyMix {
-    let parts = label
-        .split(';')
-        .map(|part| match part.rsplit_once(':') {
-            Some((name, pct)) => MixPart {
-                lithology: name.trim().to_string(),
-                fraction: pct.trim().parse::<f64>().unwrap_or(100.0) / 100.0,
-            },
-            None => MixPart {
-                lithology: part.trim().to_string(),
-                fraction: 1.0,
-            },
         })
-        .collect();
-    LithologyMix { parts }
+    }
 }
 
 pub async fn summaries(

@@ -1,66 +1,9 @@
 //! The lithology cell of a tops file: one catalogue name, or a mix such as
 //! `shale:60;sandstone:40` (percent, `;` between parts).
 
+pub use crate::column::MIX_SUM_TOLERANCE_PERCENT;
 use crate::{LithologyMix, MixPart};
 use std::collections::HashMap;
-
-/// How far a mix's percentages may sum from 100 (percentage points).
-pub const MIX_SUM_TOLERANCE_PERCENT: f64 = 0.01;
-
-/// Split a lithology cell into names as written and their percentages, checking
-/// the shape of a mix. `Err` holds the reason.
-fn split_mix(text: &str) -> Result<Vec<(&str, f64)>, String> {
-    if !text.contains([':', ';']) {
-        return Ok(vec![(text, 100.0)]);
-    }
-    let shape = "write name:percent parts separated by ';', e.g. shale:60;sandstone:40";
-    let mut parts: Vec<(&str, f64)> = Vec::new();
-    for part in text.split(';').map(str::trim).filter(|p| !p.is_empty()) {
-        let Some((name, percent)) = part.split_once(':') else {
-            return Err(format!(
-                "\"{text}\": the part \"{part}\" has no percentage; {shape}"
-            ));
-        };
-        let name = name.trim();
-        if name.is_empty() {
-            return Err(format!(
-                "\"{text}\": the part \"{part}\" has no lithology name; {shape}"
-            ));
-        }
-        let percent_text = percent.trim().trim_end_matches('%').trim_end();
-        let percent = match percent_text.parse::<f64>() {
-            Ok(p) if p.is_finite() && p > 0.0 && p <= 100.0 => p,
-            _ => {
-                return Err(format!(
-                    "\"{text}\": the percentage of {name} must be a number above 0 and at most 100, not \"{}\"",
-                    percent.trim()
-                ));
-            }
-        };
-        if parts.iter().any(|(n, _)| n.eq_ignore_ascii_case(name)) {
-            return Err(format!("\"{text}\": {name} appears twice in the mix"));
-        }
-        parts.push((name, percent));
-    }
-    if parts.is_empty() {
-        return Err(format!("\"{text}\" names no lithology; {shape}"));
-    }
-    let sum: f64 = parts.iter().map(|(_, p)| p).sum();
-    // The slack keeps a sum that is off by exactly the tolerance as printed
-    // (33.33 x 3 = 99.99) from failing on binary rounding.
-    if (sum - 100.0).abs() > MIX_SUM_TOLERANCE_PERCENT + 1e-9 {
-        return Err(format!(
-            "the mix percentages in \"{text}\" sum to {}, not 100",
-            plain(sum)
-        ));
-    }
-    Ok(parts)
-}
-
-fn plain(x: f64) -> String {
-    let s = format!("{x:.4}");
-    s.trim_end_matches('0').trim_end_matches('.').to_string()
-}
 
 /// Resolves lithology names against the study's catalogue (any case), asking the
 /// catalogue once per distinct spelling so a large file stays fast.
@@ -89,18 +32,18 @@ impl<'a> LithologyNames<'a> {
     /// Read a non-empty lithology cell into a mix of catalogue names with fractions
     /// summing to 1. `Err` holds the reason, naming every unknown lithology.
     pub(crate) fn parse(&mut self, text: &str) -> Result<LithologyMix, String> {
-        let parts = split_mix(text)?;
-        let sum: f64 = parts.iter().map(|(_, p)| p).sum();
+        let written: LithologyMix = text
+            .parse()
+            .map_err(|e: crate::column::MixSyntaxError| e.0)?;
         let mut unknown = Vec::new();
-        let mut mix = Vec::with_capacity(parts.len());
-        for (name, percent) in parts {
-            match self.resolve(name) {
-                // Dividing by the sum (100 within tolerance) makes the fractions whole.
+        let mut mix = Vec::with_capacity(written.parts.len());
+        for part in written.parts {
+            match self.resolve(&part.lithology) {
                 Some(lithology) => mix.push(MixPart {
                     lithology,
-                    fraction: percent / sum,
+                    fraction: part.fraction,
                 }),
-                None => unknown.push(format!("\"{name}\"")),
+                None => unknown.push(format!("\"{}\"", part.lithology)),
             }
         }
         match unknown.len() {
