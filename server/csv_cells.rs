@@ -1,5 +1,5 @@
 //! Every CSV Sagline writes (downloads, `sagline analyze`, `sagline section`) goes
-//! through [`write_row`], so no cell opens in a spreadsheet as a live formula.
+//! through [`write_row`](crate::csv_cells::write_row), so no cell opens in a spreadsheet as a live formula.
 //!
 //! The rule is the usual one for CSV injection (OWASP, "CSV Injection"): a text cell
 //! beginning with `=`, `+`, `-`, `@`, a tab or a carriage return gets a leading `'`,

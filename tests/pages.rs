@@ -6,8 +6,11 @@ mod common;
 use common::{Answer, TestApp, csv_part};
 use reqwest::StatusCode;
 use reqwest::multipart::Form;
-use sagline::web::pages::CAUTION;
 use serde_json::{Value, json};
+
+/// The caution the brief asks for, written out here (not taken from the code), so a
+/// page that lost or reworded it fails.
+const CAUTION: &str = "They support, and do not replace, the judgement of qualified geoscientists and the rules that apply locally.";
 
 /// The demo's own tops file, to compare a well page with what was seeded.
 const DEMO_TOPS: &str = include_str!("../demo-db/tops.csv");

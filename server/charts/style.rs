@@ -148,7 +148,7 @@ pub fn lithology_colour_hex(label: &str) -> String {
 
 /// Control points of the viridis scale (van der Walt & Smith's perceptually uniform,
 /// colour-blind-safe map, released to the public domain), at t = 0, 1/8, …, 1.
-/// Values as printed by the common 9-step listing of the scale [memory].
+/// Values as printed by the common 9-step listing of the scale \[memory\].
 const VIRIDIS: [(u8, u8, u8); 9] = [
     (0x44, 0x01, 0x54),
     (0x47, 0x2d, 0x7b),

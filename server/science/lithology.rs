@@ -25,7 +25,7 @@ pub struct Lithology {
     pub compaction_per_km: f64,
     /// Density of the grains (kg m^-3).
     pub grain_density_kg_m3: f64,
-    /// Where the numbers come from, and whether they were [confirmed] or are from [memory].
+    /// Where the numbers come from, and whether they were \[confirmed\] or are from \[memory\].
     #[serde(default)]
     pub source: String,
 }
@@ -138,7 +138,7 @@ impl Catalogue {
 
     /// The published defaults: the Sclater & Christie (1980) North Sea table
     /// (docs/science.md 1.2) and common-practice values for other rock types (docs/science.md 1.3).
-    /// The [memory] values are editable defaults; check them before relying on them.
+    /// The \[memory\] values are editable defaults; check them before relying on them.
     pub fn published_defaults() -> Self {
         const SC80: &str = "Sclater & Christie (1980) North Sea table, via Wangen (2010) \
             Table 2.1; docs/science.md 1.2";

@@ -16,7 +16,7 @@
 use crate::{SECONDS_PER_MYR, ScienceError};
 
 /// Activation energies of the EASY%Ro reactions (kcal/mol): 34 to 72 in steps of 2.
-/// Sweeney & Burnham (1990), AAPG Bulletin 74, 1559-1570, table 1 [memory].
+/// Sweeney & Burnham (1990), AAPG Bulletin 74, 1559-1570, table 1 \[memory\].
 pub const ACTIVATION_ENERGIES_KCAL_MOL: [f64; 20] = [
     34.0, 36.0, 38.0, 40.0, 42.0, 44.0, 46.0, 48.0, 50.0, 52.0, 54.0, 56.0, 58.0, 60.0, 62.0, 64.0,
     66.0, 68.0, 70.0, 72.0,
@@ -24,13 +24,13 @@ pub const ACTIVATION_ENERGIES_KCAL_MOL: [f64; 20] = [
 
 /// Stoichiometric weights of the reactions, in the order of
 /// [`ACTIVATION_ENERGIES_KCAL_MOL`]; they sum to 0.85.
-/// Sweeney & Burnham (1990), table 1 [memory].
+/// Sweeney & Burnham (1990), table 1 \[memory\].
 pub const STOICHIOMETRIC_WEIGHTS: [f64; 20] = [
     0.03, 0.03, 0.04, 0.04, 0.05, 0.05, 0.06, 0.04, 0.04, 0.07, 0.06, 0.06, 0.06, 0.05, 0.05, 0.04,
     0.03, 0.02, 0.02, 0.01,
 ];
 
-/// Frequency factor shared by all reactions (s^-1); Sweeney & Burnham (1990) [memory].
+/// Frequency factor shared by all reactions (s^-1); Sweeney & Burnham (1990) \[memory\].
 pub const FREQUENCY_FACTOR_PER_S: f64 = 1.0e13;
 
 /// Gas constant (kcal mol^-1 K^-1), CODATA value 8.314462618 J mol^-1 K^-1 / 4184.
@@ -58,7 +58,7 @@ pub fn final_ro_percent() -> f64 {
 }
 
 /// `%Ro = exp(-1.6 + 3.7 F)` for a converted fraction `F` (0 to 0.85);
-/// Sweeney & Burnham (1990), eq. 9 [memory].
+/// Sweeney & Burnham (1990), eq. 9 \[memory\].
 pub fn ro_from_fraction(converted_fraction: f64) -> f64 {
     (-1.6 + 3.7 * converted_fraction).exp()
 }

@@ -111,7 +111,7 @@ impl CrustalHeatProduction {
 
     /// A typical continental crust: A0 = 1.5 µW m^-3 [memory; upper-crustal granitoids
     /// give about 1-3 µW m^-3], D = 10 km (Turcotte & Schubert, Geodynamics §4-8: the
-    /// depth scale hr of the heat-flow–heat-production relation is about 10 km [memory]).
+    /// depth scale hr of the heat-flow–heat-production relation is about 10 km \[memory\]).
     /// Editable defaults, not measurements.
     pub const TYPICAL_CONTINENTAL: CrustalHeatProduction = CrustalHeatProduction {
         surface_production_w_m3: 1.5e-6,

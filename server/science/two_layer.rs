@@ -4,7 +4,7 @@
 //! All of McKenzie's assumptions are kept (instantaneous stretching, fixed plate base
 //! at T1, temperatures carried with the material, the simplified thermal isostasy of
 //! docs/science.md 4.5). The closed forms are the ones derived in docs/science.md 5 (flagged
-//! [derived] there: checked numerically, not against the paper's printed equations);
+//! \[derived\] there: checked numerically, not against the paper's printed equations);
 //! every one reduces to McKenzie's when delta = beta. Methods live on
 //! [`Lithosphere`], beside the uniform ones.
 
@@ -38,7 +38,7 @@ impl Lithosphere {
     /// `Si = {(1 - 1/delta) tc [(rho_0 - rho_c) - alpha T1 (rho_0 - rho_c tc/(2a))]
     ///        - (1 - 1/beta) rho_0 alpha T1 (a - tc)^2/(2a)} / (rho_0 (1 - alpha T1) - rho_fill)`
     ///
-    /// delta, beta >= 1. Royden & Keen (1980); docs/science.md 5 [derived].
+    /// delta, beta >= 1. Royden & Keen (1980); docs/science.md 5 \[derived\].
     pub fn two_layer_initial_subsidence_m(&self, delta: f64, beta: f64) -> f64 {
         let (a, tc) = (self.lithosphere_thickness_m, self.crust_thickness_m);
         let (rho0, rhoc) = (self.mantle_density_kg_m3, self.crust_density_kg_m3);
@@ -55,7 +55,7 @@ impl Lithosphere {
     ///        (1 - exp(-n^2 t/tau))`
     ///
     /// summed as `S_T(inf) - E0 sum ... exp(...)` like the uniform case; one-term keeps
-    /// n = 1. Zero for t <= 0. Royden & Keen (1980); docs/science.md 5 [derived].
+    /// n = 1. Zero for t <= 0. Royden & Keen (1980); docs/science.md 5 \[derived\].
     pub fn two_layer_thermal_subsidence_m(
         &self,
         delta: f64,
@@ -80,7 +80,7 @@ impl Lithosphere {
 
     /// Two-layer thermal subsidence as t -> inf in m. Full series:
     /// `rho_0 alpha T1 [a/2 - (tc/delta)(1 - tc/(2a)) - (a - tc)^2/(2 a beta)] / (rho_0 - rho_fill)`;
-    /// one-term: `E0` times the first modal coefficient. docs/science.md 5 [derived].
+    /// one-term: `E0` times the first modal coefficient. docs/science.md 5 \[derived\].
     pub fn two_layer_final_thermal_subsidence_m(
         &self,
         delta: f64,
@@ -110,7 +110,7 @@ impl Lithosphere {
     ///      exp(-n^2 t/tau)]`
     ///
     /// with the closed value `F(0+) = delta K T1/a` (the crust's geotherm gradient sets the
-    /// surface flux) and `K T1/a` before the event. docs/science.md 5 [derived].
+    /// surface flux) and `K T1/a` before the event. docs/science.md 5 \[derived\].
     pub fn two_layer_heat_flow_mw_m2(&self, delta: f64, beta: f64, t_myr: f64) -> f64 {
         let equilibrium = self.equilibrium_heat_flow_mw_m2();
         if t_myr < 0.0 {

@@ -75,7 +75,7 @@ impl FactorSpread {
 /// Half-widths of the uniform draws of the lithosphere parameters: plate thickness
 /// ±10 km (Parsons & Sclater 1977: 125 ± 10 km [confirmed, SCIENCE 7]); crust ±3 km,
 /// T1 ±100 °C, mantle density ±20, crust density ±50 kg m^-3, thermal expansion ±10 %
-/// (common practice for a regional study [memory]).
+/// (common practice for a regional study \[memory\]).
 pub const PARAMETER_HALF_WIDTHS: ParameterHalfWidths = ParameterHalfWidths {
     lithosphere_thickness_m: 10_000.0,
     crust_thickness_m: 3_000.0,

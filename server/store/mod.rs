@@ -3,7 +3,7 @@
 //! Each function takes an executor (`impl SqliteExecutor`) for a single statement,
 //! or `&mut SqliteConnection` when it runs several, so callers can compose them in
 //! one transaction (`let mut tx = store::write_transaction(&pool).await?; f(&mut tx).await?;`).
-//! Every transaction that writes starts with [`write_transaction`].
+//! Every transaction that writes starts with [`write_transaction`](crate::store::write_transaction).
 
 pub mod activity;
 pub mod backup;

@@ -98,7 +98,7 @@ pub(super) const NO_RIFT_TOO_FAST: &str =
 pub(super) const TWO_LAYER_NOT_AUTOMATIC: &str = "not chosen: with the whole stretch at the rift end, a uniform rift of finite duration can look depth-dependent (the finite-duration fits decide)";
 
 /// BIC difference that counts as positive evidence for a model (Kass & Raftery 1995: 2-6
-/// "positive" [memory]).
+/// "positive" \[memory\]).
 pub const BIC_EVIDENCE: f64 = 2.0;
 
 /// Pre-rift rate above which "pre-rift" is doubtful, m/Myr (docs/science.md 8.1: slow
