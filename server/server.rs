@@ -51,6 +51,7 @@ pub async fn run(args: ServeOptions) -> anyhow::Result<()> {
         .await
         .with_context(|| format!("cannot listen on {}", args.bind))?;
     let addr = listener.local_addr()?;
+    let shutdown = shutdown_signal();
     let url = format!("http://{}/", display_addr(addr));
     println!("Sagline is serving {} at {url}", path.display());
     if let Some(password) = first_admin_password {
@@ -60,7 +61,7 @@ pub async fn run(args: ServeOptions) -> anyhow::Result<()> {
             accounts::FIRST_ADMIN_NAME
         );
     }
-    serve(listener, web::AppState::new(db.clone()), shutdown_signal()).await?;
+    serve(listener, web::AppState::new(db.clone()), shutdown).await?;
     db.close().await;
     tracing::info!("stopped");
     Ok(())
@@ -98,29 +99,33 @@ fn display_addr(addr: SocketAddr) -> String {
 
 /// Ctrl-C or SIGTERM (what `kill`, systemd and container runtimes send): either one
 /// finishes the open requests, closes the live streams and the database, and stops.
-async fn shutdown_signal() {
-    let ctrl_c = async {
-        if tokio::signal::ctrl_c().await.is_err() {
-            // No Ctrl-C handler could be installed: rely on SIGTERM alone.
-            std::future::pending::<()>().await;
-        }
-    };
+/// The SIGTERM handler is installed here, before the server says it is serving, so a
+/// signal sent the moment it is up is never missed (it would end the process unclean).
+fn shutdown_signal() -> impl std::future::Future<Output = ()> + Send + 'static {
     #[cfg(unix)]
-    let terminate = async {
-        match tokio::signal::unix::signal(tokio::signal::unix::SignalKind::terminate()) {
-            Ok(mut s) => {
-                s.recv().await;
-            }
-            Err(e) => {
-                tracing::warn!(error = %e, "cannot listen for SIGTERM; only Ctrl-C stops the server cleanly");
+    let terminate = tokio::signal::unix::signal(tokio::signal::unix::SignalKind::terminate())
+        .map_err(|e| {
+            tracing::warn!(error = %e, "cannot listen for SIGTERM; only Ctrl-C stops the server cleanly");
+        })
+        .ok();
+    async move {
+        let ctrl_c = async {
+            if tokio::signal::ctrl_c().await.is_err() {
+                // No Ctrl-C handler could be installed: rely on SIGTERM alone.
                 std::future::pending::<()>().await;
             }
+        };
+        let sigterm = async {
+            #[cfg(unix)]
+            if let Some(mut s) = terminate {
+                s.recv().await;
+                return;
+            }
+            std::future::pending::<()>().await;
+        };
+        tokio::select! {
+            () = ctrl_c => tracing::info!("Ctrl-C received; finishing open requests and stopping"),
+            () = sigterm => tracing::info!("SIGTERM received; finishing open requests and stopping"),
         }
-    };
-    #[cfg(not(unix))]
-    let terminate = std::future::pending::<()>();
-    tokio::select! {
-        () = ctrl_c => tracing::info!("Ctrl-C received; finishing open requests and stopping"),
-        () = terminate => tracing::info!("SIGTERM received; finishing open requests and stopping"),
     }
 }
