@@ -108,6 +108,53 @@ fn the_fit_resolution_is_close_to_the_default() {
 }
 
 #[test]
+fn the_history_resolution_is_close_to_the_default() {
+    let l = mckenzie();
+    let ages: Vec<f64> = (0..=40).map(|i| 200.0 - 5.0 * i as f64).collect();
+    // A uniform rift over 30 Myr, and a depth-dependent one over 10 Myr (steeper gradients).
+    for event in [
+        StretchingEvent::uniform(200.0, 170.0, 2.5),
+        StretchingEvent {
+            onset_ma: 200.0,
+            end_ma: 190.0,
+            crust_factor: 1.6,
+            mantle_factor: 3.5,
+        },
+    ] {
+        let go = |settings: &NumericalSettings| {
+            run_plate(
+                &l,
+                &CrustalHeatProduction::NONE,
+                &[event],
+                IsostasyConvention::McKenzie,
+                settings,
+                &ages,
+                false,
+            )
+            .unwrap()
+            .states
+        };
+        let (fine, coarse) = (go(&NumericalSettings::default()), go(&HISTORY_RESOLUTION));
+        for (f, c) in fine.iter().zip(&coarse) {
+            assert!(
+                (f.subsidence_m - c.subsidence_m).abs() < 1.0,
+                "{event:?} at {} Ma: subsidence {} against {}",
+                f.age_ma,
+                f.subsidence_m,
+                c.subsidence_m
+            );
+            assert!(
+                (f.surface_heat_flow_mw_m2 - c.surface_heat_flow_mw_m2).abs() < 0.3,
+                "{event:?} at {} Ma: heat flow {} against {}",
+                f.age_ma,
+                f.surface_heat_flow_mw_m2,
+                c.surface_heat_flow_mw_m2
+            );
+        }
+    }
+}
+
+#[test]
 fn a_timing_outside_the_well_is_refused() {
     let l = mckenzie();
     let data = well(StretchingEvent::uniform(180.0, 160.0, 1.5));

@@ -439,8 +439,8 @@ pub fn model_choice_out(i: &Interpretation) -> contract::ModelChoiceOut {
 type ModelHistories = (Vec<HeatFlowPoint>, Vec<HeatFlowPoint>, Vec<(f64, f64)>);
 
 /// Heat flow at `ages` and on `grid`, and the model curve on `grid`, of a finite-duration
-/// fit, from one run of the numerical plate at its default resolution (heat flow out of
-/// the top of a plate without radiogenic heat: the basal heat flow).
+/// fit, from one run of the numerical plate at [`crate::finite_fit::HISTORY_RESOLUTION`]
+/// (heat flow out of the top of a plate without radiogenic heat: the basal heat flow).
 fn finite_histories(
     lithosphere: &Lithosphere,
     fit: &crate::finite_fit::FiniteRiftFit,
@@ -456,7 +456,7 @@ fn finite_histories(
         &plate::CrustalHeatProduction::NONE,
         &[fit.event()],
         plate::IsostasyConvention::McKenzie,
-        &plate::NumericalSettings::default(),
+        &crate::finite_fit::HISTORY_RESOLUTION,
         &wanted,
         false,
     )?;

@@ -103,6 +103,11 @@ pub(super) fn finite_candidates(
     let mut best = admissible(o, e)
         .then(|| fit_finite_rift(lithosphere, observations, sigmas, ages[o], ages[e], false).ok())
         .flatten();
+    // Timings already fitted on this walk (a step back to where it came from, or to a
+    // neighbour it looked at before, is not fitted again).
+    let mut fitted: std::collections::HashMap<(usize, usize), Option<FiniteRiftFit>> =
+        std::collections::HashMap::new();
+    fitted.insert((o, e), best);
     for _ in 0..MAX_END_STEPS {
         let Some(current) = best else { break };
         let moves = [
@@ -114,7 +119,14 @@ pub(super) fn finite_candidates(
         let Some((next, candidate)) = moves
             .into_iter()
             .filter(|&(no, ne)| no < ages.len() && ne < ages.len())
-            .map(|(no, ne)| ((no, ne), fit_near(no, ne, &current, false)))
+            .map(|(no, ne)| {
+                let fit = *fitted
+                    .entry((no, ne))
+                    .or_insert_with(|| fit_near(no, ne, &current, false));
+                ((no, ne), fit)
+            })
+            .collect::<Vec<_>>()
+            .into_iter()
             .min_by(|a, b| chi2(&a.1).total_cmp(&chi2(&b.1)))
         else {
             break;
@@ -147,6 +159,8 @@ pub(super) fn finite_candidates(
         .filter_map(|(o, e)| two_layer_at(o, e))
         .min_by(|a, b| a.chi_square.total_cmp(&b.chi_square));
     // Then a short walk of its own: a surface of onset or end either way, while it helps.
+    let mut fitted: std::collections::HashMap<(usize, usize), Option<FiniteRiftFit>> =
+        std::collections::HashMap::new();
     for _ in 0..TWO_LAYER_STEPS {
         let Some(current) = two_layer else { break };
         let index = |age: f64| ages.iter().position(|&a| a == age);
@@ -161,7 +175,13 @@ pub(super) fn finite_candidates(
         ]
         .into_iter()
         .filter(|&(no, ne)| no < ne && ne < ages.len())
-        .filter_map(|(no, ne)| fit_near(no, ne, &current, true))
+        .filter_map(|(no, ne)| {
+            *fitted
+                .entry((no, ne))
+                .or_insert_with(|| fit_near(no, ne, &current, true))
+        })
+        .collect::<Vec<_>>()
+        .into_iter()
         .min_by(|a, b| a.chi_square.total_cmp(&b.chi_square))
         .filter(|f| f.chi_square < current.chi_square);
         match better {
