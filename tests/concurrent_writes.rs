@@ -193,3 +193,41 @@ async fn uploads_during_pick_saves_and_comments_all_succeed_and_nothing_acknowle
             .expect("count comments");
     assert_eq!(stored_comments, COMMENT_TASKS as i64);
 }
+
+/// Two people creating a study of the same name at the same moment: one gets the study,
+/// every other answer is 409 with a message naming the clash, never a server error, and
+/// one study of that name exists afterwards.
+#[tokio::test]
+async fn creating_the_same_study_name_at_once_is_one_study_and_conflicts() {
+    let app = TestApp::empty().await;
+    let second_admin = app.sign_in_as(Role::Admin).await;
+    let name = "Quell Basin twin start";
+    let body = json!({ "name": name, "description": "an invented study" });
+    let answers: Vec<Answer> = join_all((0..12).map(|i| {
+        let agent = if i % 2 == 0 { &*app } else { &second_admin };
+        agent.post_json("/api/studies", &body)
+    }))
+    .await;
+    let created = answers
+        .iter()
+        .filter(|a| a.status == StatusCode::OK)
+        .count();
+    assert_eq!(
+        created,
+        1,
+        "{:?}",
+        answers.iter().map(|a| a.status).collect::<Vec<_>>()
+    );
+    for a in answers.iter().filter(|a| a.status != StatusCode::OK) {
+        assert_eq!(a.status, StatusCode::CONFLICT, "{}", a.body);
+        assert!(a.body.contains("already exists"), "{}", a.body);
+    }
+    let list = app.get_json("/api/studies").await;
+    let same = list["studies"]
+        .as_array()
+        .expect("a list of studies")
+        .iter()
+        .filter(|s| s["name"] == name)
+        .count();
+    assert_eq!(same, 1, "{list}");
+}

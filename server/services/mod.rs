@@ -44,16 +44,25 @@ use serde::Deserialize;
 use sqlx::SqlitePool;
 
 /// Create a study with the default model parameters and the published lithology
-/// catalogue. Returns its id.
+/// catalogue. Returns its id. A name already taken is a conflict, also when two people
+/// create the same name at once (the database's unique name decides, inside the
+/// transaction, so there is no window between a check and the insert).
 pub async fn create_study(
     db: &SqlitePool,
     name: &str,
     description: &str,
     actor: &str,
-) -> Result<i64, sqlx::Error> {
+) -> Result<i64, ServiceError> {
     let mut tx = store::write_transaction(db).await?;
     let params = ModelParameters::default();
-    let id = store::studies::insert(&mut *tx, name, description, &params).await?;
+    let id = match store::studies::insert(&mut *tx, name, description, &params).await {
+        Err(sqlx::Error::Database(e)) if e.is_unique_violation() => {
+            return Err(ServiceError::Conflict(format!(
+                "A study named '{name}' already exists; choose another name."
+            )));
+        }
+        other => other?,
+    };
     for l in Catalogue::published_defaults().lithologies() {
         store::lithologies::upsert(
             &mut *tx,
