@@ -466,3 +466,58 @@ fn impossible_runs_are_refused_with_the_reason() {
     };
     assert!(go(&[], &[4000.0, 0.0], &tiny).contains("exceed the cap"));
 }
+
+#[test]
+fn a_plate_pulled_apart_cools_like_an_ocean_ridge() {
+    // docs/science.md 7: as beta grows without bound the thermal subsidence is that of a
+    // cooling plate. Expected: the McKenzie beta -> infinity column of the section 7 table
+    // minus the 2,500 m ridge depth (the series summed to convergence, tau 62.8 Myr;
+    // this plate's tau is 62.7085 Myr, worth under 2 m at these ages), and, looser,
+    // Parsons & Sclater (1977) [confirmed], whose data fit the same physics. Tolerance
+    // 4 m: the instant stretch leaves the whole plate at T1 under a boundary layer one
+    // node (125 m) thick, which costs about 3 m at 10 Myr (measured), less later.
+    let mckenzie_limit = [
+        (10.0, 1119.51),
+        (20.0, 1583.15),
+        (40.0, 2229.99),
+        (70.0, 2867.02),
+        (100.0, 3261.42),
+        (150.0, 3614.97),
+        (200.0, 3774.43),
+    ];
+    let onset = 200.0;
+    let mut ages = vec![onset];
+    ages.extend(mckenzie_limit.iter().map(|(t, _)| onset - t));
+    let states = run(
+        &[StretchingEvent::uniform(onset, onset, 1000.0)],
+        IsostasyConvention::McKenzie,
+        &ages,
+    );
+    let at = |age: f64| {
+        states
+            .iter()
+            .find(|s| s.age_ma == age)
+            .expect("an output age")
+            .subsidence_m
+    };
+    let initial = at(onset);
+    for (t, expected) in mckenzie_limit {
+        let thermal = at(onset - t) - initial;
+        near(
+            thermal,
+            expected,
+            4.0,
+            &format!("thermal subsidence at {t} Myr"),
+        );
+        // PS77: square-root branch to 26.27 Myr, exponential beyond (docs/science.md 7).
+        let ps77 = if t < 26.27 {
+            350.0 * t.sqrt()
+        } else {
+            3900.0 - 3200.0 * (-t / 62.8).exp()
+        };
+        assert!(
+            (thermal - ps77).abs() <= 0.015 * ps77,
+            "at {t} Myr: {thermal:.1} m against Parsons & Sclater's {ps77:.1} m"
+        );
+    }
+}
