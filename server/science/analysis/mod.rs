@@ -88,7 +88,7 @@ pub fn interpret(
 ) -> Result<Interpretation, ScienceError> {
     let lithosphere = Lithosphere::water_loaded(params)?;
     let obs = observations(history);
-    let proposal = match timing {
+    let mut proposal = match timing {
         Some(t) if !t.is_empty() => phases::phases_from_picks(&lithosphere, &obs, t)?,
         _ => phases::propose_phases(&lithosphere, &obs)?,
     };
@@ -112,6 +112,13 @@ pub fn interpret(
         }
         u
     });
+    // The range is the closed-form uniform fit's; a chosen finite-duration model whose
+    // factors it does not hold must not be read against it.
+    if let (Some(f), Some(u)) = (&proposal.finite, &uncertainty)
+        && let Some(w) = finite_outside_range_warning(f, u.combined_min, u.combined_max)
+    {
+        proposal.warnings.push(w);
+    }
     let ages: Vec<f64> = obs.iter().map(|o| o.age_ma).collect();
     let oldest = ages[0];
     let youngest = ages[ages.len() - 1];
@@ -438,6 +445,22 @@ pub fn model_choice_out(i: &Interpretation) -> contract::ModelChoiceOut {
 /// Heat flow at the history ages and on the grid, and the model curve on the grid.
 type ModelHistories = (Vec<HeatFlowPoint>, Vec<HeatFlowPoint>, Vec<(f64, f64)>);
 
+/// The warning for a chosen finite-duration fit whose mantle or crust factor lies outside
+/// the beta range (which is computed for the closed-form uniform fit), or None.
+pub fn finite_outside_range_warning(
+    f: &crate::finite_fit::FiniteRiftFit,
+    beta_min: f64,
+    beta_max: f64,
+) -> Option<String> {
+    let outside = |x: f64| x < beta_min || x > beta_max;
+    (outside(f.mantle_factor) || outside(f.crust_factor)).then(|| {
+        format!(
+            "The chosen finite-duration model stretches the crust by {:.2} and the mantle by {:.2}, outside the beta range {:.2}-{:.2}, which is that of the closed-form uniform fit: no range is computed for the finite-duration factors yet, so read them without one.",
+            f.crust_factor, f.mantle_factor, beta_min, beta_max
+        )
+    })
+}
+
 /// Heat flow at `ages` and on `grid`, and the model curve on `grid`, of a finite-duration
 /// fit, from one run of the numerical plate at [`crate::finite_fit::HISTORY_RESOLUTION`]
 /// (heat flow out of the top of a plate without radiogenic heat: the basal heat flow).
@@ -586,4 +609,36 @@ pub fn csv_rows(w: &WellOut) -> Vec<Vec<String>> {
             ]
         })
         .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::finite_fit::FiniteRiftFit;
+
+    fn finite(crust_factor: f64, mantle_factor: f64) -> FiniteRiftFit {
+        FiniteRiftFit {
+            rift_onset_ma: 170.0,
+            rift_end_ma: 150.0,
+            crust_factor,
+            mantle_factor,
+            pre_rift_subsidence_m: 0.0,
+            rms_misfit_m: 10.0,
+            chi_square: 5.0,
+        }
+    }
+
+    #[test]
+    fn a_finite_fit_outside_the_closed_form_range_is_warned_about() {
+        // A depth-dependent finite fit (mantle 3.1) read against a uniform range 1.65-2.08.
+        let w = finite_outside_range_warning(&finite(1.84, 3.10), 1.65, 2.08).expect("a warning");
+        assert!(w.contains("3.10") && w.contains("1.65-2.08"), "{w}");
+        // Inside the range on both factors: nothing to say.
+        assert_eq!(
+            finite_outside_range_warning(&finite(1.8, 1.9), 1.65, 2.08),
+            None
+        );
+        // The crust alone outside is enough.
+        assert!(finite_outside_range_warning(&finite(1.5, 1.9), 1.65, 2.08).is_some());
+    }
 }
