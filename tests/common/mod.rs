@@ -83,9 +83,18 @@ pub struct Answer {
     pub location: Option<String>,
     pub content_type: String,
     pub body: String,
+    pub headers: reqwest::header::HeaderMap,
 }
 
 impl Answer {
+    /// A response header as text, if present.
+    pub fn header(&self, name: &str) -> Option<String> {
+        self.headers
+            .get(name)
+            .and_then(|v| v.to_str().ok())
+            .map(str::to_string)
+    }
+
     async fn read(response: Response) -> Answer {
         let status = response.status();
         let header = |name| {
@@ -97,12 +106,14 @@ impl Answer {
         };
         let location = header(LOCATION);
         let content_type = header(CONTENT_TYPE).unwrap_or_default();
+        let headers = response.headers().clone();
         let body = response.text().await.expect("response body");
         Answer {
             status,
             location,
             content_type,
             body,
+            headers,
         }
     }
 
