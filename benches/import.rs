@@ -225,7 +225,8 @@ fn import(c: &mut Criterion) {
                 let mut total = Duration::ZERO;
                 for _ in 0..iterations {
                     let server = FreshServer::start().await;
-                    let mut form = Form::new().part(
+                    // Field names go as written (`map.Well Name`), as a browser sends them.
+                    let mut form = Form::new().percent_encode_noop().part(
                         "tops",
                         Part::bytes(wide.clone()).file_name("orrin_tops.csv"),
                     );

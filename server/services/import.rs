@@ -35,6 +35,8 @@ pub struct UploadFiles {
 pub struct ReadUploadFile {
     pub file_name: String,
     pub read: ReadFile,
+    /// The size of the file as sent.
+    pub size_bytes: usize,
 }
 
 impl ReadUploadFile {
@@ -43,6 +45,7 @@ impl ReadUploadFile {
         ReadUploadFile {
             read: ReadFile::read(&file.bytes, &file.file_name),
             file_name: file.file_name.clone(),
+            size_bytes: file.bytes.len(),
         }
     }
 
@@ -68,6 +71,15 @@ impl ReadUpload {
             wells: files.wells.as_ref().map(ReadUploadFile::read),
             sea_level: files.sea_level.as_ref().map(ReadUploadFile::read),
         }
+    }
+
+    /// The size of the files as sent.
+    pub fn size_bytes(&self) -> usize {
+        [&self.tops, &self.wells, &self.sea_level]
+            .into_iter()
+            .flatten()
+            .map(|f| f.size_bytes)
+            .sum()
     }
 }
 

@@ -31,6 +31,11 @@ impl StagedUpload {
         }
     }
 
+    /// The size of the held files as sent.
+    pub fn size_bytes(&self) -> usize {
+        self.files.size_bytes()
+    }
+
     /// Check the files with `options` against the catalogue names, or give the last
     /// check when it was made with the same options and catalogue. CPU-bound on a
     /// new mapping: call it from `spawn_blocking`.
