@@ -515,3 +515,31 @@ async fn uploading_an_existing_well_is_refused_naming_it_unless_replace_is_given
         "after: {now}"
     );
 }
+
+#[tokio::test]
+async fn the_existence_check_names_the_stored_wells_in_the_order_asked() {
+    let (app, study) = common::tops::app_with_a_stored_well().await;
+    assert_eq!(
+        app.upload_tops(study, VALID_TOPS).await.status,
+        StatusCode::OK
+    );
+    let mut conn = app.pool.acquire().await.expect("a connection");
+    let ask = |names: &[&str]| names.iter().map(|n| n.to_string()).collect::<Vec<_>>();
+    let found = sagline::store::wells::existing_names(
+        &mut conn,
+        study,
+        &ask(&["Veyra-2", "Nobody-9", "Orrin-7", "veyra-1", "Veyra-1"]),
+    )
+    .await
+    .expect("the existence query");
+    assert_eq!(found, ["Veyra-2", "Orrin-7", "Veyra-1"]);
+    let none = sagline::store::wells::existing_names(&mut conn, study, &[])
+        .await
+        .expect("an empty question");
+    assert!(none.is_empty());
+    let other_study =
+        sagline::store::wells::existing_names(&mut conn, study + 1000, &ask(&["Veyra-1"]))
+            .await
+            .expect("another study");
+    assert!(other_study.is_empty(), "{other_study:?}");
+}

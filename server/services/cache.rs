@@ -5,14 +5,14 @@
 //! catalogue), the model parameters, the sea-level curve and the team's rift timing.
 //! An edit therefore invalidates exactly what it touches, with no bookkeeping: a
 //! changed well, or a lithology it uses, gives a new key; every other well keeps its
-//! entry. Old entries are dropped when the cache is full (oldest first).
+//! entry. The cache is bounded by the size of what it holds (least recently used
+//! dropped first), and concurrent misses of one key compute once (moka).
 
 use sagline_science::WellColumn;
 use sagline_science::analysis::{StudyInputs, WellAnalysis};
-use std::collections::{HashMap, VecDeque};
 use std::hash::{DefaultHasher, Hash, Hasher};
+use std::sync::Arc;
 use std::sync::atomic::{AtomicU64, Ordering};
-use std::sync::{Arc, Mutex};
 
 /// The content key of one well's analysis.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -87,77 +87,157 @@ pub struct CacheStats {
     pub entries: usize,
 }
 
-/// An in-memory cache of well analyses keyed by content.
-#[derive(Debug)]
-pub struct AnalysisCache {
-    capacity: usize,
-    inner: Mutex<Entries>,
+/// An in-memory cache of computed values keyed by content, bounded by the total
+/// weight of its entries (least recently used dropped first). Concurrent misses of
+/// one key compute once: the later callers wait for the first one's result.
+pub struct ContentCache<V> {
+    entries: moka::sync::Cache<ContentKey, Arc<V>>,
     hits: AtomicU64,
     misses: AtomicU64,
 }
 
-#[derive(Debug, Default)]
-struct Entries {
-    map: HashMap<ContentKey, Arc<WellAnalysis>>,
-    order: VecDeque<ContentKey>,
+impl<V> std::fmt::Debug for ContentCache<V> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("ContentCache")
+            .field("entries", &self.entries.entry_count())
+            .finish()
+    }
 }
 
-impl AnalysisCache {
-    /// A cache holding at most `capacity` well analyses.
-    pub fn new(capacity: usize) -> Self {
-        AnalysisCache {
-            capacity: capacity.max(1),
-            inner: Mutex::new(Entries::default()),
+impl<V: Send + Sync + 'static> ContentCache<V> {
+    /// A cache holding entries of total weight at most `capacity`; `weight` weighs
+    /// one entry (at least 1).
+    pub fn new(capacity: u64, weight: fn(&V) -> u32) -> Self {
+        ContentCache {
+            entries: moka::sync::Cache::builder()
+                .max_capacity(capacity.max(1))
+                .weigher(move |_, v: &Arc<V>| weight(v).max(1))
+                .eviction_policy(moka::policy::EvictionPolicy::lru())
+                .build(),
             hits: AtomicU64::new(0),
             misses: AtomicU64::new(0),
         }
     }
 
-    /// The cached analysis for `key`, counting a hit or a miss.
-    pub fn get(&self, key: ContentKey) -> Option<Arc<WellAnalysis>> {
-        let found = self
-            .inner
-            .lock()
-            .expect("cache lock")
-            .map
-            .get(&key)
-            .cloned();
-        let counter = if found.is_some() {
-            &self.hits
-        } else {
-            &self.misses
-        };
+    /// The value for `key`, computed by `compute` when the cache does not hold it
+    /// (counted as a miss; a failed computation is not kept). A caller that misses
+    /// while another computes the same key waits for that result (counted as a hit).
+    /// `compute` must not call back into the cache.
+    pub fn get_or_compute<E: Send + Sync + 'static>(
+        &self,
+        key: ContentKey,
+        compute: impl FnOnce() -> Result<V, E>,
+    ) -> Result<Arc<V>, Arc<E>> {
+        let mut computed = false;
+        let found = self.entries.try_get_with(key, || {
+            computed = true;
+            compute().map(Arc::new)
+        });
+        let counter = if computed { &self.misses } else { &self.hits };
         counter.fetch_add(1, Ordering::Relaxed);
         found
     }
 
-    pub fn insert(&self, key: ContentKey, analysis: Arc<WellAnalysis>) {
-        let mut e = self.inner.lock().expect("cache lock");
-        if e.map.insert(key, analysis).is_none() {
-            e.order.push_back(key);
-        }
-        while e.map.len() > self.capacity {
-            match e.order.pop_front() {
-                Some(old) => {
-                    e.map.remove(&old);
-                }
-                None => break,
-            }
-        }
-    }
-
+    /// Counters, and the entries held once pending evictions have run.
     pub fn stats(&self) -> CacheStats {
+        self.entries.run_pending_tasks();
         CacheStats {
             hits: self.hits.load(Ordering::Relaxed),
             misses: self.misses.load(Ordering::Relaxed),
-            entries: self.inner.lock().expect("cache lock").map.len(),
+            entries: self.entries.entry_count() as usize,
         }
+    }
+
+    /// The total weight held once pending evictions have run.
+    pub fn weight(&self) -> u64 {
+        self.entries.run_pending_tasks();
+        self.entries.weighted_size()
     }
 }
 
-impl Default for AnalysisCache {
-    /// Room for a few large studies.
+/// The cache of well analyses, weighed by the surfaces of their history.
+pub type AnalysisCache = ContentCache<WellAnalysis>;
+
+/// The weight of one well's analysis: its restored units over every step (the
+/// history's size grows with their count, the square of the surfaces).
+fn analysis_weight(a: &WellAnalysis) -> u32 {
+    let units: usize = a.history.steps.iter().map(|s| s.units.len() + 1).sum();
+    u32::try_from(units).unwrap_or(u32::MAX)
+}
+
+impl Default for ContentCache<WellAnalysis> {
+    /// Room for a few large studies: 20,000 wells of 60 surfaces (about 1,800 restored
+    /// units each).
     fn default() -> Self {
-        AnalysisCache::new(20_000)
+        ContentCache::new(20_000 * 1_830, analysis_weight)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::sync::Barrier;
+    use std::thread;
+    use std::time::Duration;
+
+    #[test]
+    fn two_concurrent_misses_of_one_key_compute_once() {
+        let cache: ContentCache<u64> = ContentCache::new(100, |_| 1);
+        let computed = AtomicU64::new(0);
+        let start = Barrier::new(2);
+        let results: Vec<u64> = thread::scope(|s| {
+            let calls: Vec<_> = (0..2)
+                .map(|_| {
+                    s.spawn(|| {
+                        start.wait();
+                        let v = cache
+                            .get_or_compute(ContentKey(7), || {
+                                computed.fetch_add(1, Ordering::SeqCst);
+                                // Long enough for the other caller to miss meanwhile.
+                                thread::sleep(Duration::from_millis(200));
+                                Ok::<u64, String>(49)
+                            })
+                            .expect("computed");
+                        *v
+                    })
+                })
+                .collect();
+            calls
+                .into_iter()
+                .map(|c| c.join().expect("caller"))
+                .collect()
+        });
+        assert_eq!(results, [49, 49]);
+        assert_eq!(computed.load(Ordering::SeqCst), 1);
+        let stats = cache.stats();
+        assert_eq!((stats.misses, stats.hits, stats.entries), (1, 1, 1));
+    }
+
+    #[test]
+    fn the_total_weight_stays_within_the_bound() {
+        let cache: ContentCache<u64> = ContentCache::new(50, |v| *v as u32);
+        for k in 0..40u64 {
+            cache
+                .get_or_compute(ContentKey(k), || Ok::<u64, String>(10))
+                .expect("computed");
+        }
+        assert!(cache.weight() <= 50, "{}", cache.weight());
+        assert!(cache.stats().entries <= 5, "{:?}", cache.stats());
+        // The most recent entry is held.
+        let before = cache.stats().misses;
+        cache
+            .get_or_compute(ContentKey(39), || Ok::<u64, String>(10))
+            .expect("held");
+        assert_eq!(cache.stats().misses, before, "key 39 was still held");
+    }
+
+    #[test]
+    fn a_failed_computation_is_not_kept() {
+        let cache: ContentCache<u64> = ContentCache::new(10, |_| 1);
+        let failed = cache.get_or_compute(ContentKey(1), || Err::<u64, _>("no".to_string()));
+        assert_eq!(failed.unwrap_err().as_str(), "no");
+        let again = cache.get_or_compute(ContentKey(1), || Ok::<u64, String>(3));
+        assert_eq!(*again.expect("computed now"), 3);
+        assert_eq!(cache.stats().misses, 2);
     }
 }

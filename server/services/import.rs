@@ -1,13 +1,14 @@
-//! Storing an upload: validate every file first (pure, off the async runtime), then
-//! store everything in one transaction, with the replacement of existing wells only
-//! when the user said so, and an activity-log row for every change.
+//! Storing an upload: read every file once and validate it (pure, off the async
+//! runtime), then store everything in one transaction, with the replacement of
+//! existing wells only when the user said so (checked by one query inside the
+//! transaction), and an activity-log row for every change.
 
 use super::ServiceError;
 use crate::store;
 use crate::store::activity::Change;
 use crate::store::wells::Location;
 use sagline_science::input::{
-    self, InputProblem, ParsedTops, ParsedWells, TopsOptions, WellsOptions,
+    self, InputProblem, ParsedTops, ParsedWells, ReadFile, TopsOptions, WellsOptions,
 };
 use sagline_science::{SeaLevelCurve, WellColumn};
 use serde::Serialize;
@@ -28,8 +29,62 @@ pub struct UploadFiles {
     pub sea_level: Option<NamedFile>,
 }
 
+/// One file of an upload read once as CSV, under its name; any number of previews
+/// and checks use this one reading.
+#[derive(Debug)]
+pub struct ReadUploadFile {
+    pub file_name: String,
+    pub read: ReadFile,
+    /// The size of the file as sent.
+    pub size_bytes: usize,
+}
+
+impl ReadUploadFile {
+    /// Read a file's bytes (CPU-bound for a large file).
+    pub fn read(file: &NamedFile) -> ReadUploadFile {
+        ReadUploadFile {
+            read: ReadFile::read(&file.bytes, &file.file_name),
+            file_name: file.file_name.clone(),
+            size_bytes: file.bytes.len(),
+        }
+    }
+
+    /// The header at position `index`, as written.
+    pub fn header(&self, index: usize) -> Option<&str> {
+        self.read.headers()?.get(index).map(String::as_str)
+    }
+}
+
+/// The files of an upload, each read once.
+#[derive(Debug, Default)]
+pub struct ReadUpload {
+    pub tops: Option<ReadUploadFile>,
+    pub wells: Option<ReadUploadFile>,
+    pub sea_level: Option<ReadUploadFile>,
+}
+
+impl ReadUpload {
+    /// Read every file (CPU-bound: call it from `spawn_blocking` for large files).
+    pub fn read(files: &UploadFiles) -> ReadUpload {
+        ReadUpload {
+            tops: files.tops.as_ref().map(ReadUploadFile::read),
+            wells: files.wells.as_ref().map(ReadUploadFile::read),
+            sea_level: files.sea_level.as_ref().map(ReadUploadFile::read),
+        }
+    }
+
+    /// The size of the files as sent.
+    pub fn size_bytes(&self) -> usize {
+        [&self.tops, &self.wells, &self.sea_level]
+            .into_iter()
+            .flatten()
+            .map(|f| f.size_bytes)
+            .sum()
+    }
+}
+
 /// How to read the files.
-#[derive(Debug, Clone, Default)]
+#[derive(Debug, Clone, Default, PartialEq)]
 pub struct UploadOptions {
     pub tops: TopsOptions,
     pub wells: WellsOptions,
@@ -73,6 +128,15 @@ pub fn validate(
     options: &UploadOptions,
     catalogue: &[String],
 ) -> Result<ValidatedUpload, Vec<InputProblem>> {
+    validate_read(&ReadUpload::read(files), options, catalogue)
+}
+
+/// [`validate`] on files read before: no bytes are read again.
+pub fn validate_read(
+    files: &ReadUpload,
+    options: &UploadOptions,
+    catalogue: &[String],
+) -> Result<ValidatedUpload, Vec<InputProblem>> {
     if files.tops.is_none() && files.wells.is_none() && files.sea_level.is_none() {
         return Err(vec![InputProblem {
             file: "upload".into(),
@@ -88,38 +152,27 @@ pub fn validate(
         sea_level: None,
     };
     if let Some(f) = &files.tops {
-        let opts = TopsOptions {
-            file_name: Some(f.file_name.clone()),
-            ..options.tops.clone()
-        };
         let spelling = |name: &str| {
             catalogue
                 .iter()
                 .find(|c| c.eq_ignore_ascii_case(name))
                 .cloned()
         };
-        match input::parse_tops_with_catalogue(&f.bytes, &opts, &spelling) {
+        match input::parse_tops_read(&f.read, &options.tops, &spelling) {
             Ok(t) => out.tops = Some((f.file_name.clone(), t)),
             Err(p) => problems.extend(p),
         }
     }
     if let Some(f) = &files.wells {
-        let opts = WellsOptions {
-            file_name: Some(f.file_name.clone()),
-            ..options.wells.clone()
-        };
-        match input::parse_wells(&f.bytes, &opts) {
+        match input::parse_wells_read(&f.read, &options.wells) {
             Ok(w) => out.wells = Some((f.file_name.clone(), w)),
             Err(p) => problems.extend(p),
         }
     }
     if let Some(f) = &files.sea_level {
-        match input::parse_sea_level(&f.bytes) {
+        match input::parse_sea_level_read(&f.read) {
             Ok(c) => out.sea_level = Some((f.file_name.clone(), c)),
-            Err(mut p) => {
-                input::name_file(&mut p, &f.file_name);
-                problems.extend(p)
-            }
+            Err(p) => problems.extend(p),
         }
     }
     if problems.is_empty() {
@@ -161,6 +214,15 @@ fn column_summary(w: &WellColumn) -> String {
     )
 }
 
+/// What storing an upload did.
+#[derive(Debug, Clone)]
+pub enum Stored {
+    /// Stored, in one transaction.
+    Done(ImportOutcome),
+    /// Nothing stored: these wells exist and replacing them was not confirmed.
+    WellsExist(Vec<String>),
+}
+
 /// Store a validated upload in one transaction. Wells that already exist are
 /// replaced only when `replace` is true; otherwise nothing is stored and the
 /// conflict names them.
@@ -171,6 +233,27 @@ pub async fn store_upload(
     replace: bool,
     actor: &str,
 ) -> Result<ImportOutcome, ServiceError> {
+    match store_checked(db, study_id, upload, replace, actor).await? {
+        Stored::Done(outcome) => Ok(outcome),
+        Stored::WellsExist(existing) => Err(ServiceError::Conflict(format!(
+            "{} well(s) of this upload already exist in the study: {}. Confirm that they should be replaced (replace=true), or remove them from the file.",
+            existing.len(),
+            existing.join(", ")
+        ))),
+    }
+}
+
+/// [`store_upload`], answering existing wells that were not to be replaced with
+/// their names instead of an error. Which wells exist is asked once, inside the
+/// transaction, so a well added by another upload meanwhile is never replaced
+/// unasked.
+pub async fn store_checked(
+    db: &SqlitePool,
+    study_id: i64,
+    upload: &ValidatedUpload,
+    replace: bool,
+    actor: &str,
+) -> Result<Stored, ServiceError> {
     let mut tx = store::write_transaction(db).await?;
     let mut outcome = ImportOutcome {
         notes: upload.notes(),
@@ -178,11 +261,7 @@ pub async fn store_upload(
     };
     let existing = store::wells::existing_names(&mut tx, study_id, &upload.well_names()).await?;
     if !existing.is_empty() && !replace {
-        return Err(ServiceError::Conflict(format!(
-            "{} well(s) of this upload already exist in the study: {}. Confirm that they should be replaced (replace=true), or remove them from the file.",
-            existing.len(),
-            existing.join(", ")
-        )));
+        return Ok(Stored::WellsExist(existing));
     }
 
     if let Some((file_name, tops)) = &upload.tops {
@@ -334,7 +413,7 @@ pub async fn store_upload(
     }
 
     tx.commit().await?;
-    Ok(outcome)
+    Ok(Stored::Done(outcome))
 }
 
 fn old_summary(rows: &[store::wells::SurfaceRow]) -> String {

@@ -8,6 +8,7 @@ pub mod cache;
 pub mod import;
 pub mod results;
 pub mod review;
+pub mod upload;
 
 use sagline_science::input::InputProblem;
 

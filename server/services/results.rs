@@ -11,7 +11,8 @@ use sagline_science::WellColumn;
 use sagline_science::analysis::{self, RiftTiming, StudyInputs, WellAnalysis};
 use sqlx::SqlitePool;
 use std::collections::HashMap;
-use std::sync::{Arc, Mutex};
+use std::sync::Arc;
+use std::time::Duration;
 
 /// A well's analysis, or why it could not be analysed (in words for the user).
 pub type WellOutcome = Result<Arc<WellAnalysis>, String>;
@@ -26,28 +27,60 @@ pub struct WellResult {
 
 /// A whole study's results, remembered with the study revision they were made at
 /// (the newest activity row: every change writes one). A repeated overview of an
-/// unchanged study then costs one query instead of reloading every surface.
-#[derive(Debug, Default)]
+/// unchanged study then costs one query instead of reloading every surface. At most
+/// [`MEMO_STUDIES`] studies are remembered (the least recently used dropped first),
+/// each for at most [`MEMO_IDLE`] after it was last asked for.
+#[derive(Debug)]
 pub struct StudyMemo {
-    studies: Mutex<HashMap<i64, (i64, Arc<StudyResults>)>>,
+    studies: moka::sync::Cache<i64, (i64, Arc<StudyResults>)>,
 }
+
+/// How many studies' results are remembered at once.
+pub const MEMO_STUDIES: u64 = 32;
+/// How long a study's results are remembered when nobody asks for them.
+pub const MEMO_IDLE: Duration = Duration::from_secs(30 * 60);
 
 /// The inputs and per-well results of a study.
 pub type StudyResults = (StudyInputs, Vec<WellResult>);
 
+impl Default for StudyMemo {
+    fn default() -> Self {
+        StudyMemo::new(MEMO_STUDIES, MEMO_IDLE)
+    }
+}
+
 impl StudyMemo {
+    /// Remember at most `studies` studies, each for `idle` after its last use.
+    pub fn new(studies: u64, idle: Duration) -> Self {
+        StudyMemo {
+            studies: moka::sync::Cache::builder()
+                .max_capacity(studies)
+                .eviction_policy(moka::policy::EvictionPolicy::lru())
+                .time_to_idle(idle)
+                .build(),
+        }
+    }
+
     fn get(&self, study_id: i64, revision: i64) -> Option<Arc<StudyResults>> {
-        let map = self.studies.lock().expect("study memo lock");
-        map.get(&study_id)
+        self.studies
+            .get(&study_id)
             .filter(|(r, _)| *r == revision)
-            .map(|(_, v)| Arc::clone(v))
+            .map(|(_, v)| v)
     }
 
     fn put(&self, study_id: i64, revision: i64, results: Arc<StudyResults>) {
-        self.studies
-            .lock()
-            .expect("study memo lock")
-            .insert(study_id, (revision, results));
+        self.studies.insert(study_id, (revision, results));
+    }
+
+    /// How many studies are remembered, once pending evictions have run.
+    pub fn len(&self) -> u64 {
+        self.studies.run_pending_tasks();
+        self.studies.entry_count()
+    }
+
+    /// Whether no study is remembered.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
     }
 }
 
@@ -144,11 +177,43 @@ fn analyse_cached(
 ) -> WellOutcome {
     let column: WellColumn = super::well_column(name, surfaces).map_err(|e| e.to_string())?;
     let key = content_key(&column, inputs, timing);
-    if let Some(hit) = cache.get(key) {
-        return Ok(hit);
+    // Another request missing the same well waits for this computation.
+    cache
+        .get_or_compute(key, || {
+            analysis::analyse_well(&column, inputs, timing).map_err(|e| e.to_string())
+        })
+        .map_err(|e| e.as_ref().clone())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn results() -> Arc<StudyResults> {
+        let inputs = StudyInputs {
+            params: sagline_science::ModelParameters::default(),
+            catalogue: sagline_science::lithology::Catalogue::published_defaults(),
+            sea_level: sagline_science::SeaLevelCurve::default(),
+        };
+        Arc::new((inputs, Vec::new()))
     }
-    let analysis =
-        Arc::new(analysis::analyse_well(&column, inputs, timing).map_err(|e| e.to_string())?);
-    cache.insert(key, Arc::clone(&analysis));
-    Ok(analysis)
+
+    #[test]
+    fn the_memo_holds_at_most_its_bound_and_answers_only_its_revision() {
+        let memo = StudyMemo::new(3, MEMO_IDLE);
+        for study in 0..10 {
+            memo.put(study, 5, results());
+        }
+        assert!(memo.len() <= 3, "{}", memo.len());
+        assert!(memo.get(9, 5).is_some(), "the newest study is remembered");
+        assert!(memo.get(9, 6).is_none(), "not for another revision");
+    }
+
+    #[test]
+    fn an_unused_study_is_forgotten() {
+        let memo = StudyMemo::new(3, Duration::from_millis(50));
+        memo.put(1, 1, results());
+        std::thread::sleep(Duration::from_millis(120));
+        assert!(memo.get(1, 1).is_none());
+    }
 }

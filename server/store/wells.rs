@@ -142,23 +142,31 @@ pub async fn all_surfaces(
     .await
 }
 
-/// Names of the given wells that already exist in the study.
+/// Names of the given wells that already exist in the study, in the order given;
+/// one statement however many names.
 pub async fn existing_names(
     conn: &mut SqliteConnection,
     study_id: i64,
     names: &[String],
 ) -> StoreResult<Vec<String>> {
-    let mut found = Vec::new();
-    for name in names {
-        let hit: Option<String> =
-            sqlx::query_scalar("SELECT name FROM wells WHERE study_id = ? AND name = ?")
-                .bind(study_id)
-                .bind(name)
-                .fetch_optional(&mut *conn)
-                .await?;
-        found.extend(hit);
+    if names.is_empty() {
+        return Ok(Vec::new());
     }
-    Ok(found)
+    let list = serde_json::to_string(names).map_err(|e| sqlx::Error::Encode(Box::new(e)))?;
+    let found: Vec<String> = sqlx::query_scalar(
+        "SELECT name FROM wells
+         WHERE study_id = ? AND name IN (SELECT value FROM json_each(?))",
+    )
+    .bind(study_id)
+    .bind(list)
+    .fetch_all(&mut *conn)
+    .await?;
+    let found: std::collections::HashSet<String> = found.into_iter().collect();
+    Ok(names
+        .iter()
+        .filter(|n| found.contains(*n))
+        .cloned()
+        .collect())
 }
 
 pub async fn delete_by_name(

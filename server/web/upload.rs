@@ -5,14 +5,14 @@
 //! Nothing is stored until every file validates; a valid upload is one transaction.
 
 use super::pages::{PreviewPage, UploadPage};
-use super::staging::{StagedFile, StagedUpload};
 use super::studies::{StudyInfo, load_study};
 use super::{ApiResult, AppError, AppState, HtmlError, PageResult};
 use crate::services::ServiceError;
 use crate::services::accounts::SignedIn;
 use crate::services::import::{
-    self, ImportOutcome, NamedFile, UploadFiles, UploadOptions, ValidatedUpload,
+    self, ImportOutcome, NamedFile, ReadUploadFile, Stored, UploadFiles, UploadOptions,
 };
+use crate::services::upload::{self as staging, StagedUpload};
 use crate::store;
 use crate::store::uploads::UploadRow;
 use askama::Template;
@@ -186,13 +186,13 @@ fn upload_options(
         } else if let Some(header) = key.strip_prefix("wells_map.") {
             wells_map = wells_map.with(header, column);
         } else if let (Some(index), Some(s)) = (key.strip_prefix("tops_col_"), staged) {
-            if let Some(header) = staged_header(s.tops.as_ref(), index) {
-                tops_map = tops_map.with(&header, column);
+            if let Some(header) = staged_header(s.files.tops.as_ref(), index) {
+                tops_map = tops_map.with(header, column);
             }
         } else if let (Some(index), Some(s)) = (key.strip_prefix("wells_col_"), staged)
-            && let Some(header) = staged_header(s.wells.as_ref(), index)
+            && let Some(header) = staged_header(s.files.wells.as_ref(), index)
         {
-            wells_map = wells_map.with(&header, column);
+            wells_map = wells_map.with(header, column);
         }
     }
     Ok(UploadOptions {
@@ -210,36 +210,9 @@ fn upload_options(
     })
 }
 
-fn staged_header(file: Option<&StagedFile>, index: &str) -> Option<String> {
-    let file = file?;
-    let i: usize = index.parse().ok()?;
-    let p = input::preview(
-        &file.bytes,
-        &PreviewOptions {
-            rows: 0,
-            ..PreviewOptions::new(FileKind::Tops)
-        },
-    )
-    .ok()?;
-    p.headers.get(i).cloned()
-}
-
-/// Validate off the async runtime: a large file takes a moment to parse.
-async fn validate_files(
-    state: &AppState,
-    study_id: i64,
-    files: UploadFiles,
-    options: UploadOptions,
-) -> Result<ValidatedUpload, AppError> {
-    let catalogue: Vec<String> = store::lithologies::list(&state.db, study_id)
-        .await?
-        .into_iter()
-        .map(|l| l.name)
-        .collect();
-    tokio::task::spawn_blocking(move || import::validate(&files, &options, &catalogue))
-        .await
-        .map_err(|e| AppError::Internal(anyhow::anyhow!("validation task failed: {e}")))?
-        .map_err(AppError::Invalid)
+/// The header at a form's column index, from the file as read when it was held.
+fn staged_header<'f>(file: Option<&'f ReadUploadFile>, index: &str) -> Option<&'f str> {
+    file?.header(index.parse().ok()?)
 }
 
 fn truthy(v: Option<&String>) -> bool {
@@ -273,38 +246,42 @@ async fn tops_api(
     load_study(&state, id).await?;
     let MultipartUpload { files, fields } = read_multipart(multipart).await?;
     let options = upload_options(&fields, None)?;
-    let upload = validate_files(&state, id, files, options).await?;
-    let existing = import::existing_wells(&state.db, id, &upload).await?;
+    let upload = staging::check_files(&state.db, id, files, options)
+        .await?
+        .map_err(AppError::Invalid)?;
     let wells = upload.well_names();
     if truthy(fields.get("dry_run")) {
         let answer = TopsApiAnswer {
             stored: false,
             wells,
-            existing_wells: existing,
+            existing_wells: import::existing_wells(&state.db, id, &upload).await?,
             notes: upload.notes(),
             outcome: None,
         };
         return Ok(Json(answer).into_response());
     }
     let replace = truthy(fields.get("replace"));
-    if !existing.is_empty() && !replace {
-        let body = serde_json::json!({
-            "error": format!("{} well(s) already exist in this study; send replace=true to replace them.", existing.len()),
-            "existing_wells": existing,
-        });
-        return Ok((StatusCode::CONFLICT, Json(body)).into_response());
+    // Which wells exist is asked inside the store's transaction: a well added by
+    // another upload meanwhile is refused, not silently replaced.
+    match import::store_checked(&state.db, id, &upload, replace, &user.name).await? {
+        Stored::WellsExist(existing) => {
+            let body = serde_json::json!({
+                "error": format!("{} well(s) already exist in this study; send replace=true to replace them.", existing.len()),
+                "existing_wells": existing,
+            });
+            Ok((StatusCode::CONFLICT, Json(body)).into_response())
+        }
+        Stored::Done(outcome) => {
+            let answer = TopsApiAnswer {
+                stored: true,
+                wells,
+                existing_wells: outcome.wells_replaced.clone(),
+                notes: outcome.notes.clone(),
+                outcome: Some(outcome),
+            };
+            Ok(Json(answer).into_response())
+        }
     }
-    // The store step checks again inside its transaction: a well added by another
-    // upload since the check above is refused, not silently replaced.
-    let outcome = import::store_upload(&state.db, id, &upload, replace, &user.name).await?;
-    let answer = TopsApiAnswer {
-        stored: true,
-        wells,
-        existing_wells: existing,
-        notes: outcome.notes.clone(),
-        outcome: Some(outcome),
-    };
-    Ok(Json(answer).into_response())
 }
 
 /// Browser step 1: hold the files and show the preview.
@@ -323,21 +300,12 @@ async fn upload_form(
         };
         return Ok((StatusCode::UNPROCESSABLE_ENTITY, Html(page.render()?)).into_response());
     }
-    let staged_file = |f: Option<NamedFile>| {
-        f.map(|f| StagedFile {
-            file_name: f.file_name,
-            bytes: f.bytes,
-        })
-    };
-    let token = state.staging.put(StagedUpload::new(
-        id,
-        staged_file(files.tops),
-        staged_file(files.wells),
-        staged_file(files.sea_level),
-    ));
+    // Refuse a bad unit word before reading the files.
+    let depth_unit = parse_unit(fields.get("depth_unit"), "depth_unit")?;
+    let token = state.staging.put(staging::stage(id, files).await?);
     let mut query = String::new();
     // Only the known unit words travel in the URL; anything else was refused above.
-    if let Some(unit) = parse_unit(fields.get("depth_unit"), "depth_unit")? {
+    if let Some(unit) = depth_unit {
         query = format!(
             "?depth_unit={}",
             if unit == DepthUnit::Feet {
@@ -398,21 +366,28 @@ async fn preview_view(
     let mut files = Vec::new();
     for (field, kind) in FILE_FIELDS {
         let (file, mapping, label) = match kind {
-            FileKind::Tops => (staged.tops.as_ref(), options.tops.mapping.clone(), "Tops"),
+            FileKind::Tops => (
+                staged.files.tops.as_ref(),
+                options.tops.mapping.clone(),
+                "Tops",
+            ),
             FileKind::Wells => (
-                staged.wells.as_ref(),
+                staged.files.wells.as_ref(),
                 options.wells.mapping.clone(),
                 "Wells",
             ),
-            _ => (staged.sea_level.as_ref(), ColumnMapping::new(), "Sea level"),
+            _ => (
+                staged.files.sea_level.as_ref(),
+                ColumnMapping::new(),
+                "Sea level",
+            ),
         };
         let Some(file) = file else { continue };
         let opts = PreviewOptions {
             mapping,
-            file_name: Some(file.file_name.clone()),
             ..PreviewOptions::new(kind)
         };
-        let preview = input::preview(&file.bytes, &opts).ok();
+        let preview = input::preview_read(&file.read, &opts).ok();
         let chosen = preview
             .as_ref()
             .map(|p| {
@@ -442,25 +417,13 @@ async fn preview_view(
         Some(DepthUnit::Metres) => "metres",
         Some(DepthUnit::Feet) => "feet",
     };
-    let as_named = |f: &Option<StagedFile>| {
-        f.as_ref().map(|f| NamedFile {
-            file_name: f.file_name.clone(),
-            bytes: f.bytes.clone(),
-        })
-    };
-    let upload_files = UploadFiles {
-        tops: as_named(&staged.tops),
-        wells: as_named(&staged.wells),
-        sea_level: as_named(&staged.sea_level),
-    };
     let (problems, wells_in_upload, existing_wells, notes) =
-        match validate_files(state, id, upload_files, options.clone()).await {
+        match staging::check_staged(&state.db, &staged, &options).await? {
             Ok(upload) => {
                 let existing = import::existing_wells(&state.db, id, &upload).await?;
                 (Vec::new(), upload.well_names(), existing, upload.notes())
             }
-            Err(AppError::Invalid(problems)) => (problems, Vec::new(), Vec::new(), Vec::new()),
-            Err(e) => return Err(e),
+            Err(problems) => (problems, Vec::new(), Vec::new(), Vec::new()),
         };
     let mut notes = notes;
     if guessed {
@@ -518,21 +481,14 @@ fn with_guessed_mapping(
     }
     let mut guessed = false;
     for (prefix, kind, file) in [
-        ("tops", FileKind::Tops, staged.tops.as_ref()),
-        ("wells", FileKind::Wells, staged.wells.as_ref()),
+        ("tops", FileKind::Tops, staged.files.tops.as_ref()),
+        ("wells", FileKind::Wells, staged.files.wells.as_ref()),
     ] {
-        let Some(file) = file else { continue };
-        let Ok(p) = input::preview(
-            &file.bytes,
-            &PreviewOptions {
-                rows: 0,
-                ..PreviewOptions::new(kind)
-            },
-        ) else {
+        let Some(headers) = file.and_then(|f| f.read.headers()) else {
             continue;
         };
-        for (header, column) in input::guess_mapping(kind, &p.headers) {
-            if let Some(i) = p.headers.iter().position(|h| *h == header) {
+        for (header, column) in input::guess_mapping(kind, headers) {
+            if let Some(i) = headers.iter().position(|h| *h == header) {
                 fields.insert(format!("{prefix}_col_{i}"), column);
                 guessed = true;
             }
@@ -547,48 +503,37 @@ pub fn is_chosen(chosen: &[String], index: &usize, column: &str) -> bool {
 }
 
 /// Browser step 2: store the held files with the chosen mapping, or show why not.
+/// The check the preview made with this mapping is reused, not made again.
 async fn store_form(
     State(state): State<AppState>,
     user: SignedIn,
     Path((id, token)): Path<(i64, String)>,
     Form(fields): Form<HashMap<String, String>>,
 ) -> PageResult<Response> {
-    let mut view = preview_view(&state, id, &token, &fields).await?;
-    if !view.ready {
-        return Ok((
-            StatusCode::UNPROCESSABLE_ENTITY,
-            Html(PreviewPage { view }.render()?),
-        )
-            .into_response());
-    }
-    let replace = truthy(fields.get("replace"));
-    if !view.existing_wells.is_empty() && !replace {
-        view.needs_replace_confirmation = true;
-        return Ok((StatusCode::CONFLICT, Html(PreviewPage { view }.render()?)).into_response());
-    }
+    load_study(&state, id).await?;
     let staged = state
         .staging
         .get(&token, id)
         .ok_or_else(|| AppError::NotFound("this upload".into()))?;
     let options = upload_options(&fields, Some(&staged))?;
-    let as_named = |f: Option<StagedFile>| {
-        f.map(|f| NamedFile {
-            file_name: f.file_name,
-            bytes: f.bytes,
-        })
+    let upload = match staging::check_staged(&state.db, &staged, &options).await? {
+        Ok(upload) => upload,
+        // The preview page shows the problems (and answers 422).
+        Err(_) => return preview_page(State(state), Path((id, token)), Query(fields)).await,
     };
-    let files = UploadFiles {
-        tops: as_named(staged.tops),
-        wells: as_named(staged.wells),
-        sea_level: as_named(staged.sea_level),
-    };
-    let upload = validate_files(&state, id, files, options).await?;
-    match import::store_upload(&state.db, id, &upload, replace, &user.name).await {
-        Ok(_) => {
+    let replace = truthy(fields.get("replace"));
+    match import::store_checked(&state.db, id, &upload, replace, &user.name).await {
+        Ok(Stored::Done(_)) => {
             state.staging.remove(&token);
             Ok(Redirect::to(&format!("/studies/{id}")).into_response())
         }
+        Ok(Stored::WellsExist(_)) => {
+            let mut view = preview_view(&state, id, &token, &fields).await?;
+            view.needs_replace_confirmation = true;
+            Ok((StatusCode::CONFLICT, Html(PreviewPage { view }.render()?)).into_response())
+        }
         Err(ServiceError::Problems(problems)) => {
+            let mut view = preview_view(&state, id, &token, &fields).await?;
             view.problems = problems;
             view.ready = false;
             Ok((

@@ -3,7 +3,7 @@
 
 use super::bounds::{PhysicalRange, check_length};
 use super::problems::{InputProblem, Problems};
-use super::table::{Row, Table, parse_number, read_table};
+use super::table::{ReadFile, Row, Table, parse_number, read_table};
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
@@ -232,6 +232,29 @@ impl Columns {
         let Some(table) = read_table(bytes, &mut problems) else {
             return Err(problems.finish());
         };
+        let (columns, problems) = Columns::fit(&table, kind, mapping, problems)?;
+        Ok((table, columns, problems))
+    }
+
+    /// [`Columns::open`] on a file read before: no bytes are read again.
+    pub(crate) fn open_read<'r>(
+        read: &'r ReadFile,
+        kind: FileKind,
+        mapping: &ColumnMapping,
+    ) -> Result<(&'r Table, Columns, Problems), Vec<InputProblem>> {
+        let (table, problems) = read.table()?;
+        let (columns, problems) = Columns::fit(table, kind, mapping, problems)?;
+        Ok((table, columns, problems))
+    }
+
+    /// Match a table's headers to `kind`, refusing headers that do not fit and a
+    /// table without data rows.
+    fn fit(
+        table: &Table,
+        kind: FileKind,
+        mapping: &ColumnMapping,
+        mut problems: Problems,
+    ) -> Result<(Columns, Problems), Vec<InputProblem>> {
         let before = problems.count();
         let columns = Columns::resolve(
             kind,
@@ -247,7 +270,7 @@ impl Columns {
             problems.whole_file("the file has a header but no data rows");
             return Err(problems.finish());
         }
-        Ok((table, columns, problems))
+        Ok((columns, problems))
     }
 
     pub(crate) fn resolve(

@@ -2,8 +2,8 @@
 //! few rows, and how the headers were matched, so the user can fix the mapping.
 
 use super::columns::{ColumnMapping, Columns, DepthUnit, FileKind, MatchedColumn};
-use super::problems::{InputProblem, Problems};
-use super::table::read_table;
+use super::problems::InputProblem;
+use super::table::ReadFile;
 use serde::{Deserialize, Serialize};
 
 /// Data rows a preview shows unless told otherwise.
@@ -70,10 +70,16 @@ pub fn preview(bytes: &[u8], options: &PreviewOptions) -> Result<Preview, Vec<In
         .file_name
         .as_deref()
         .unwrap_or(options.kind.default_file_name());
-    let mut problems = Problems::new(file);
-    let Some(table) = read_table(bytes, &mut problems) else {
-        return Err(problems.finish());
-    };
+    preview_read(&ReadFile::read(bytes, file), options)
+}
+
+/// [`preview`] of a file read before: a new mapping costs no reading (problems
+/// carry the file's name; `options.file_name` is not used).
+pub fn preview_read(
+    read: &ReadFile,
+    options: &PreviewOptions,
+) -> Result<Preview, Vec<InputProblem>> {
+    let (table, mut problems) = read.table()?;
     let columns = Columns::resolve(
         options.kind,
         &table.headers,
@@ -105,7 +111,7 @@ pub fn preview(bytes: &[u8], options: &PreviewOptions) -> Result<Preview, Vec<In
             .collect(),
         matched: columns.matched,
         missing: columns.missing,
-        headers: table.headers,
+        headers: table.headers.clone(),
         depth_unit,
         problems: problems.finish(),
     })

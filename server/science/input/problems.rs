@@ -47,6 +47,7 @@ pub fn name_file(problems: &mut [InputProblem], file: &str) {
 
 /// Collects the problems of one file, keeping the earliest lines when there are
 /// too many, with memory bounded however broken the file is.
+#[derive(Debug, Clone)]
 pub(crate) struct Problems {
     file: String,
     kept: Vec<InputProblem>,

@@ -2,19 +2,24 @@
 
 use super::bounds::{AGE_MA, SEA_LEVEL_M};
 use super::columns::{ColumnMapping, Columns, FileKind};
-use super::problems::{InputProblem, Problems};
+use super::problems::InputProblem;
+use super::table::ReadFile;
 use crate::{SeaLevelCurve, SeaLevelPoint};
 
 /// Read a sea-level file: `age_ma` (not negative) and `sea_level_m` (above present,
 /// m). Two points at one age, and numbers that are not finite, are refused.
 /// Other columns are ignored ([`super::preview`] lists them).
 pub fn parse_sea_level(bytes: &[u8]) -> Result<SeaLevelCurve, Vec<InputProblem>> {
-    let (table, columns, mut problems) = Columns::open(
+    parse_sea_level_read(&ReadFile::read(
         bytes,
-        FileKind::SeaLevel,
-        &ColumnMapping::new(),
-        Problems::new(FileKind::SeaLevel.default_file_name()),
-    )?;
+        FileKind::SeaLevel.default_file_name(),
+    ))
+}
+
+/// [`parse_sea_level`] on a file read before (problems carry its name).
+pub fn parse_sea_level_read(read: &ReadFile) -> Result<SeaLevelCurve, Vec<InputProblem>> {
+    let (table, columns, mut problems) =
+        Columns::open_read(read, FileKind::SeaLevel, &ColumnMapping::new())?;
     let (age, level) = (columns.field("age_ma"), columns.field("sea_level_m"));
     let mut points: Vec<(SeaLevelPoint, usize)> = Vec::with_capacity(table.rows.len());
     for row in table.rows.iter().filter(|r| r.complete) {

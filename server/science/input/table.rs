@@ -2,7 +2,7 @@
 //! the line of every row, refusing files that are too large, not UTF-8, empty or
 //! ragged.
 
-use super::problems::Problems;
+use super::problems::{InputProblem, Problems};
 use csv::{ReaderBuilder, StringRecord, Trim};
 
 /// The largest input file accepted (64 MiB): far above any real well set, low
@@ -21,6 +21,50 @@ pub(crate) struct Table {
     pub headers: Vec<String>,
     /// Data rows with as many cells as the header.
     pub rows: Vec<Row>,
+}
+
+/// A file's bytes read once as CSV, under the file's name: its table with the
+/// problems found while reading it (rows with the wrong field count), or every
+/// reason it cannot be read at all. Previews and parsers take it with any column
+/// mapping, so a new mapping never reads the bytes again.
+#[derive(Debug)]
+pub struct ReadFile {
+    file_name: String,
+    read: Result<(Table, Problems), Vec<InputProblem>>,
+}
+
+impl ReadFile {
+    /// Read `bytes` (named `file_name` in every problem).
+    pub fn read(bytes: &[u8], file_name: &str) -> ReadFile {
+        let mut problems = Problems::new(file_name);
+        let read = match read_table(bytes, &mut problems) {
+            Some(table) => Ok((table, problems)),
+            None => Err(problems.finish()),
+        };
+        ReadFile {
+            file_name: file_name.to_string(),
+            read,
+        }
+    }
+
+    /// The name problems carry.
+    pub fn file_name(&self) -> &str {
+        &self.file_name
+    }
+
+    /// The headers as written, when the file could be read.
+    pub fn headers(&self) -> Option<&[String]> {
+        self.read.as_ref().ok().map(|(t, _)| t.headers.as_slice())
+    }
+
+    /// The table and a fresh copy of the reading problems, for one preview or parse;
+    /// or why the file cannot be read.
+    pub(crate) fn table(&self) -> Result<(&Table, Problems), Vec<InputProblem>> {
+        match &self.read {
+            Ok((table, problems)) => Ok((table, problems.clone())),
+            Err(problems) => Err(problems.clone()),
+        }
+    }
 }
 
 /// One data row and the line it starts on.

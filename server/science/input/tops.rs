@@ -4,7 +4,7 @@ use super::bounds::{AGE_MA, DEPTH_M, ERODED_M, MAX_NAME_CHARS, PhysicalRange, WA
 use super::columns::{ColumnMapping, Columns, DepthUnit, Field, FileKind};
 use super::lithology::LithologyNames;
 use super::problems::{InputProblem, Problems};
-use super::table::Row;
+use super::table::{ReadFile, Row};
 use crate::{Erosion, LithologyMix, Surface, WaterDepth, WellColumn};
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
@@ -61,8 +61,18 @@ pub fn parse_tops_with_catalogue(
         .file_name
         .as_deref()
         .unwrap_or(FileKind::Tops.default_file_name());
+    parse_tops_read(&ReadFile::read(bytes, file), options, catalogue_name)
+}
+
+/// [`parse_tops_with_catalogue`] on a file read before (problems carry its name;
+/// `options.file_name` is not used).
+pub fn parse_tops_read(
+    read: &ReadFile,
+    options: &TopsOptions,
+    catalogue_name: &dyn Fn(&str) -> Option<String>,
+) -> Result<ParsedTops, Vec<InputProblem>> {
     let (table, columns, mut problems) =
-        Columns::open(bytes, FileKind::Tops, &options.mapping, Problems::new(file))?;
+        Columns::open_read(read, FileKind::Tops, &options.mapping)?;
     let fields = TopsFields::new(&columns);
     let detected = if fields.depth_in_feet {
         DepthUnit::Feet

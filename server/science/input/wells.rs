@@ -2,7 +2,8 @@
 
 use super::bounds::{COORDINATE_M, MAX_NAME_CHARS, MAX_NOTE_CHARS, check_length};
 use super::columns::{ColumnMapping, Columns, FileKind};
-use super::problems::{InputProblem, Problems};
+use super::problems::InputProblem;
+use super::table::ReadFile;
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
 use std::collections::hash_map::Entry;
@@ -51,12 +52,17 @@ pub fn parse_wells(bytes: &[u8], options: &WellsOptions) -> Result<ParsedWells, 
         .file_name
         .as_deref()
         .unwrap_or(FileKind::Wells.default_file_name());
-    let (table, columns, mut problems) = Columns::open(
-        bytes,
-        FileKind::Wells,
-        &options.mapping,
-        Problems::new(file),
-    )?;
+    parse_wells_read(&ReadFile::read(bytes, file), options)
+}
+
+/// [`parse_wells`] on a file read before (problems carry its name;
+/// `options.file_name` is not used).
+pub fn parse_wells_read(
+    read: &ReadFile,
+    options: &WellsOptions,
+) -> Result<ParsedWells, Vec<InputProblem>> {
+    let (table, columns, mut problems) =
+        Columns::open_read(read, FileKind::Wells, &options.mapping)?;
     let well = columns.field("well");
     let (x, y, lat, lon) = (
         columns.field("x"),
