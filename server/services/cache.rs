@@ -85,6 +85,10 @@ pub struct CacheStats {
     pub hits: u64,
     pub misses: u64,
     pub entries: usize,
+    /// Wells backstripped (each computed analysis backstrips its column once).
+    pub backstrips: u64,
+    /// Stretching-model interpretations computed (one per analysed timing).
+    pub interpretations: u64,
 }
 
 /// An in-memory cache of well analyses keyed by content.
@@ -94,6 +98,8 @@ pub struct AnalysisCache {
     inner: Mutex<Entries>,
     hits: AtomicU64,
     misses: AtomicU64,
+    backstrips: AtomicU64,
+    interpretations: AtomicU64,
 }
 
 #[derive(Debug, Default)]
@@ -110,6 +116,8 @@ impl AnalysisCache {
             inner: Mutex::new(Entries::default()),
             hits: AtomicU64::new(0),
             misses: AtomicU64::new(0),
+            backstrips: AtomicU64::new(0),
+            interpretations: AtomicU64::new(0),
         }
     }
 
@@ -146,11 +154,20 @@ impl AnalysisCache {
         }
     }
 
+    /// Count work done for misses: `backstrips` columns restored, `interpretations` fits made.
+    pub fn count_work(&self, backstrips: u64, interpretations: u64) {
+        self.backstrips.fetch_add(backstrips, Ordering::Relaxed);
+        self.interpretations
+            .fetch_add(interpretations, Ordering::Relaxed);
+    }
+
     pub fn stats(&self) -> CacheStats {
         CacheStats {
             hits: self.hits.load(Ordering::Relaxed),
             misses: self.misses.load(Ordering::Relaxed),
             entries: self.inner.lock().expect("cache lock").map.len(),
+            backstrips: self.backstrips.load(Ordering::Relaxed),
+            interpretations: self.interpretations.load(Ordering::Relaxed),
         }
     }
 }

@@ -8,6 +8,7 @@ pub mod cache;
 pub mod import;
 pub mod results;
 pub mod review;
+pub mod well_page;
 
 use sagline_science::input::InputProblem;
 
@@ -253,6 +254,16 @@ pub async fn study_inputs(
         .await?
         .ok_or_else(|| ServiceError::NotFound(format!("study {study_id}")))?;
     let rows = store::lithologies::list(db, study_id).await?;
+    let points = store::sea_level::points(db, study_id).await?;
+    inputs_of(&study, rows, points)
+}
+
+/// A study's analysis inputs from its stored rows (no SQL).
+pub fn inputs_of(
+    study: &store::studies::StudyRow,
+    rows: Vec<store::lithologies::LithologyRow>,
+    points: Vec<sagline_science::SeaLevelPoint>,
+) -> Result<sagline_science::analysis::StudyInputs, ServiceError> {
     let lithologies = rows
         .into_iter()
         .map(|r| {
@@ -270,7 +281,6 @@ pub async fn study_inputs(
         .collect::<Result<Vec<_>, _>>()?;
     let catalogue =
         Catalogue::new(lithologies).map_err(|e| ServiceError::Invalid(e.to_string()))?;
-    let points = store::sea_level::points(db, study_id).await?;
     let sea_level = sagline_science::SeaLevelCurve::new(points)
         .map_err(|e| ServiceError::Invalid(e.to_string()))?;
     Ok(sagline_science::analysis::StudyInputs {

@@ -147,6 +147,7 @@ fn analyse_cached(
     if let Some(hit) = cache.get(key) {
         return Ok(hit);
     }
+    cache.count_work(1, 1);
     let analysis =
         Arc::new(analysis::analyse_well(&column, inputs, timing).map_err(|e| e.to_string())?);
     cache.insert(key, Arc::clone(&analysis));

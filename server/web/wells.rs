@@ -3,11 +3,10 @@
 
 use super::exports::{self, ExportMeta};
 use super::pages::WellPage;
-use super::studies::{StudyInfo, load_study};
+use super::studies::StudyInfo;
 use super::well_charts;
 use super::{ApiResult, AppError, AppState, PageResult};
-use crate::services::results::{self, WellResult};
-use crate::store;
+use crate::services::well_page;
 use crate::store::comments::CommentRow;
 use crate::store::picks::PickRow;
 use crate::store::wells::{SurfaceRow, WellRow};
@@ -20,7 +19,7 @@ use axum::response::{Html, Response};
 use axum::routing::get;
 use axum::{Json, Router};
 use sagline_charts::ChartSize;
-use sagline_science::analysis::{self, StudyInputs, WellAnalysis, contract::WellOut};
+use sagline_science::analysis::{self, WellAnalysis, contract::WellOut};
 use serde::{Deserialize, Serialize};
 
 pub fn routes() -> Router<AppState> {
@@ -149,33 +148,24 @@ pub struct WellCharts {
     pub heat_flow: String,
 }
 
-/// A well, its stored column and its (cached) analysis.
-async fn well_result(
+/// The well page's data: study, inputs, well, picks and comments read once, the
+/// analysis and the proposal computed in one blocking task.
+async fn page_data(
     state: &AppState,
     study_id: i64,
     well_id: i64,
     trial: Option<&Trial>,
-) -> ApiResult<(StudyInfo, StudyInputs, WellResult)> {
-    let study = load_study(state, study_id).await?;
-    let well = store::wells::get(&state.db, study_id, well_id)
-        .await?
-        .ok_or_else(|| AppError::NotFound(format!("well {well_id} in study {study_id}")))?;
-    // A trial timing (the pick editor's preview) wins over the team's saved picks.
-    let timing = match trial.and_then(Trial::timing) {
-        Some(t) => Some(t),
-        None => {
-            let picks = store::picks::for_well(&state.db, well.id).await?;
-            (!picks.is_empty()).then(|| {
-                picks
-                    .iter()
-                    .map(|p| (p.rift_onset_ma, p.rift_end_ma))
-                    .collect()
-            })
-        }
-    };
-    let (inputs, result) =
-        results::well_result(&state.db, &state.cache, study_id, well, timing).await?;
-    Ok((StudyInfo::from(&study), inputs, result))
+    want: well_page::Want,
+) -> ApiResult<well_page::WellPageData> {
+    Ok(well_page::load(
+        &state.db,
+        &state.cache,
+        study_id,
+        well_id,
+        trial.and_then(Trial::timing),
+        want,
+    )
+    .await?)
 }
 
 async fn well_view(
@@ -183,52 +173,55 @@ async fn well_view(
     study_id: i64,
     well_id: i64,
     trial: Option<&Trial>,
+    draw: bool,
 ) -> ApiResult<WellView> {
-    let (study, _inputs, r) = well_result(state, study_id, well_id, trial).await?;
-    let picks = store::picks::for_well(&state.db, well_id).await?;
-    let comments = store::comments::for_well(&state.db, well_id).await?;
-    // The automatic proposal beside the team's pick (cached, so cheap when unchanged).
-    let uses_timing = !picks.is_empty() || trial.and_then(Trial::timing).is_some();
-    let proposal = if uses_timing {
-        let (_, p) =
-            results::well_result(&state.db, &state.cache, study_id, r.well.clone(), None).await?;
-        p.outcome.ok().map(|a| ProposalView::of(&a))
-    } else {
-        r.outcome.as_ref().ok().map(|a| ProposalView::of(a))
+    let want = well_page::Want {
+        comments: true,
+        proposal: true,
     };
+    let d = page_data(state, study_id, well_id, trial, want).await?;
+    let r = d.result;
+    // The automatic proposal beside the team's pick.
+    let proposal = d.proposal.as_ref().ok().map(|a| ProposalView::of(a));
     let (analysis, restored, analysis_error) = match &r.outcome {
         Ok(a) => (Some(analysis::well_out(a)), restored_steps(a), None),
         Err(e) => (None, Vec::new(), Some(e.clone())),
     };
-    let charts = match &r.outcome {
-        Ok(a) => {
-            let size = ChartSize::default();
-            WellCharts {
-                subsidence: sagline_charts::subsidence_chart(
-                    &well_charts::subsidence_data(&r.well.name, a),
-                    size,
-                ),
-                burial: sagline_charts::burial_chart(
-                    &well_charts::burial_data(&r.well.name, a),
-                    size,
-                ),
-                heat_flow: sagline_charts::heat_flow_chart(
-                    &well_charts::heat_flow_data(&r.well.name, a),
-                    size,
-                ),
-            }
+    let charts = match (&r.outcome, draw) {
+        (Ok(a), true) => {
+            let a = std::sync::Arc::clone(a);
+            let name = r.well.name.clone();
+            tokio::task::spawn_blocking(move || {
+                let size = ChartSize::default();
+                WellCharts {
+                    subsidence: sagline_charts::subsidence_chart(
+                        &well_charts::subsidence_data(&name, &a),
+                        size,
+                    ),
+                    burial: sagline_charts::burial_chart(
+                        &well_charts::burial_data(&name, &a),
+                        size,
+                    ),
+                    heat_flow: sagline_charts::heat_flow_chart(
+                        &well_charts::heat_flow_data(&name, &a),
+                        size,
+                    ),
+                }
+            })
+            .await
+            .map_err(|e| AppError::Internal(anyhow::anyhow!("chart task failed: {e}")))?
         }
-        Err(_) => WellCharts::default(),
+        _ => WellCharts::default(),
     };
     Ok(WellView {
-        study,
+        study: StudyInfo::from(&d.study),
         column: column_rows(&r.surfaces),
         well: r.well,
         analysis,
         restored,
         analysis_error,
-        picks,
-        comments,
+        picks: d.picks,
+        comments: d.comments,
         proposal,
         trial: trial.copied().filter(|t| t.timing().is_some()),
         message: None,
@@ -344,7 +337,7 @@ pub async fn render_well_page(
     message: Option<PageMessage>,
     status: StatusCode,
 ) -> PageResult<Response> {
-    let mut view = well_view(state, study_id, well_id, trial).await?;
+    let mut view = well_view(state, study_id, well_id, trial, true).await?;
     view.message = message;
     Ok((status, Html(WellPage { view }.render()?)).into_response())
 }
@@ -362,7 +355,9 @@ async fn well_json(
     Path((id, well_id)): Path<(i64, i64)>,
     Query(trial): Query<Trial>,
 ) -> ApiResult<Json<WellView>> {
-    Ok(Json(well_view(&state, id, well_id, Some(&trial)).await?))
+    Ok(Json(
+        well_view(&state, id, well_id, Some(&trial), false).await?,
+    ))
 }
 
 /// Downloads of the well page: charts as SVG, tables as CSV, the analysis as JSON.
@@ -370,7 +365,12 @@ async fn well_download(
     State(state): State<AppState>,
     Path((id, well_id, file)): Path<(i64, i64, String)>,
 ) -> ApiResult<Response> {
-    let (study, inputs, r) = well_result(&state, id, well_id, None).await?;
+    let want = well_page::Want {
+        comments: false,
+        proposal: false,
+    };
+    let d = page_data(&state, id, well_id, None, want).await?;
+    let (study, inputs, r) = (d.study, d.inputs, d.result);
     let meta = ExportMeta::new(&study.name, &inputs);
     let name = &r.well.name;
     let a = r
