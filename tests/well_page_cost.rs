@@ -163,7 +163,7 @@ async fn a_well_page_with_a_saved_pick_runs_at_most_eight_statements_and_one_ana
     assert_eq!(after.interpretations, before.interpretations);
     println!("well page with a saved pick: {statements} SQL statements");
 
-    // The JSON twin reads the same and draws no chart.
+    // The JSON twin reads no more.
     let json_path = format!("/api/studies/{study}/wells/{well}");
     counter.reset();
     let twin = app.get(&json_path).await;

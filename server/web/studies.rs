@@ -295,11 +295,22 @@ fn rift_timing_data(study: &str, rows: &[OverviewRow]) -> RiftTimingData {
     }
 }
 
-async fn study_view(state: &AppState, id: i64) -> ApiResult<StudyView> {
+/// The overview; `draw` its charts only for the page that shows them.
+async fn study_view(state: &AppState, id: i64, draw: bool) -> ApiResult<StudyView> {
     let study = load_study(state, id).await?;
     let summaries = store::wells::summaries(&state.db, id).await?;
     let (_, wells) = overview_rows(state, id, &summaries).await?;
-    let charts = overview_charts(&study.name, &wells);
+    let (wells, charts) = if draw {
+        let name = study.name.clone();
+        tokio::task::spawn_blocking(move || {
+            let charts = overview_charts(&name, &wells);
+            (wells, charts)
+        })
+        .await
+        .map_err(|e| AppError::Internal(anyhow::anyhow!("chart task failed: {e}")))?
+    } else {
+        (wells, OverviewCharts::default())
+    };
     Ok(StudyView {
         study: StudyInfo::from(&study),
         wells,
@@ -319,8 +330,29 @@ async fn study_download(
     let summaries = store::wells::summaries(&state.db, id).await?;
     let (inputs, rows) = overview_rows(&state, id, &summaries).await?;
     let meta = ExportMeta::new(&study.name, &inputs);
+    let memo = if file == "analysis.json" {
+        Some(results::study_results_memo(&state.db, &state.cache, &state.study_memo, id).await?)
+    } else {
+        None
+    };
     let base = study.name.clone();
-    Ok(match file.as_str() {
+    // Drawing, rasterising and serialising stay off the async workers.
+    tokio::task::spawn_blocking(move || study_file(&meta, &base, &rows, memo.as_deref(), &file))
+        .await
+        .map_err(|e| AppError::Internal(anyhow::anyhow!("download task failed: {e}")))?
+}
+
+/// One download of the overview.
+fn study_file(
+    meta: &ExportMeta,
+    base: &str,
+    rows: &[OverviewRow],
+    memo: Option<&results::StudyResults>,
+    file: &str,
+) -> ApiResult<Response> {
+    let meta = meta.clone();
+    let base = base.to_string();
+    Ok(match file {
         "wells.csv" => {
             let num = |x: Option<f64>, d: usize| x.map(|v| format!("{v:.d$}")).unwrap_or_default();
             let table: Vec<Vec<String>> = rows
@@ -402,9 +434,11 @@ async fn study_download(
             exports::png_download(&meta, &format!("{base}-rift-timing.png"), &chart)
         }
         "analysis.json" => {
-            let memo =
-                results::study_results_memo(&state.db, &state.cache, &state.study_memo, id).await?;
-            let (inputs, results) = &*memo;
+            let Some((inputs, results)) = memo else {
+                return Err(AppError::Internal(anyhow::anyhow!(
+                    "the study's results were not loaded"
+                )));
+            };
             let wells: Vec<_> = results
                 .iter()
                 .map(|r| match &r.outcome {
@@ -433,7 +467,7 @@ async fn study_page(
     State(state): State<AppState>,
     Path(id): Path<i64>,
 ) -> PageResult<Html<String>> {
-    let view = study_view(&state, id).await?;
+    let view = study_view(&state, id, true).await?;
     Ok(Html(StudyPage { view }.render()?))
 }
 
@@ -441,5 +475,5 @@ async fn study_json(
     State(state): State<AppState>,
     Path(id): Path<i64>,
 ) -> ApiResult<Json<StudyView>> {
-    Ok(Json(study_view(&state, id).await?))
+    Ok(Json(study_view(&state, id, false).await?))
 }

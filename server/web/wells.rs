@@ -6,6 +6,7 @@ use super::pages::WellPage;
 use super::studies::StudyInfo;
 use super::well_charts;
 use super::{ApiResult, AppError, AppState, PageResult};
+use crate::services::results::WellResult;
 use crate::services::well_page;
 use crate::store::comments::CommentRow;
 use crate::store::picks::PickRow;
@@ -372,11 +373,23 @@ async fn well_download(
     let d = page_data(&state, id, well_id, None, want).await?;
     let (study, inputs, r) = (d.study, d.inputs, d.result);
     let meta = ExportMeta::new(&study.name, &inputs);
+    let a = r.outcome.as_ref().map(std::sync::Arc::clone).map_err(|e| {
+        AppError::Rejected(format!("Well {} could not be analysed: {e}", r.well.name))
+    })?;
+    // Drawing, rasterising and serialising stay off the async workers.
+    tokio::task::spawn_blocking(move || well_file(&meta, &r, &a, &file))
+        .await
+        .map_err(|e| AppError::Internal(anyhow::anyhow!("download task failed: {e}")))?
+}
+
+/// One download of the well page, built from its analysis.
+fn well_file(
+    meta: &ExportMeta,
+    r: &WellResult,
+    a: &WellAnalysis,
+    file: &str,
+) -> ApiResult<Response> {
     let name = &r.well.name;
-    let a = r
-        .outcome
-        .as_ref()
-        .map_err(|e| AppError::Rejected(format!("Well {name} could not be analysed: {e}")))?;
     let size = ChartSize::default();
     let svg = |body: String| {
         exports::download(
@@ -392,7 +405,7 @@ async fn well_download(
             exports::csv_text(&meta, what, header, &rows),
         )
     };
-    Ok(match file.as_str() {
+    Ok(match file {
         "subsidence.svg" => svg(sagline_charts::subsidence_chart(
             &well_charts::subsidence_data(name, a),
             size,
