@@ -3,6 +3,7 @@
 //! that same transaction, so a change and its record land together or not at all.
 
 pub mod accounts;
+pub mod activity;
 pub mod backup;
 pub mod cache;
 pub mod import;

@@ -8,9 +8,7 @@ use super::{ApiResult, AppError, AppState, PageResult};
 use crate::auth::Role;
 use crate::services::ServiceError;
 use crate::services::accounts::{self, SignedIn};
-use crate::store;
-use crate::store::activity::ActivityRow;
-use crate::store::users::UserRow;
+use crate::services::activity::{self as log, ActivityRow, UserRow};
 use askama::Template;
 use axum::extract::{Path, State};
 use axum::http::header::CACHE_CONTROL;
@@ -68,7 +66,7 @@ async fn users_view(state: &AppState) -> ApiResult<UsersView> {
                 summary: role.summary(),
             })
             .collect(),
-        changes: store::users::account_activity(&state.db, 50).await?,
+        changes: log::account_changes(&state.db, 50).await?,
     })
 }
 
