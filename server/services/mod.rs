@@ -6,9 +6,11 @@ pub mod accounts;
 pub mod activity;
 pub mod backup;
 pub mod cache;
+pub mod catalogue;
 pub mod import;
 pub mod results;
 pub mod review;
+pub mod studies;
 pub mod well_page;
 
 use sagline_science::input::InputProblem;

@@ -2,10 +2,10 @@
 
 use super::activity::ActivityView;
 use super::admin::{IssuedPassword, UsersView};
-use super::catalogue::CatalogueView;
 use super::studies::{StudiesView, StudyView};
 use super::upload::{PreviewView, UploadView};
 use super::wells::WellView;
+use crate::services::catalogue::CatalogueView;
 use askama::Template;
 
 /// The caution shown on every page and export.

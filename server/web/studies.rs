@@ -4,9 +4,10 @@ use super::exports::{self, ExportMeta};
 use super::pages::{StudiesPage, StudyPage};
 use super::{ApiResult, AppError, AppState, PageResult};
 use crate::services::results::{self, WellResult};
+use crate::services::studies::StudyRow;
 use crate::store;
 use crate::store::picks::PickRow;
-use crate::store::studies::{StudyRow, StudySummary};
+use crate::store::studies::StudySummary;
 use crate::store::uploads::UploadRow;
 use crate::store::wells::WellSummary;
 use askama::Template;
@@ -29,31 +30,11 @@ pub fn routes() -> Router<AppState> {
         .route("/studies/{id}/download/{file}", get(study_download))
 }
 
-/// The study header shown on every page of a study.
-#[derive(Debug, Clone, Serialize)]
-pub struct StudyInfo {
-    pub id: i64,
-    pub name: String,
-    pub description: String,
-    pub created_at: String,
-}
-
-impl From<&StudyRow> for StudyInfo {
-    fn from(s: &StudyRow) -> Self {
-        StudyInfo {
-            id: s.id,
-            name: s.name.clone(),
-            description: s.description.clone(),
-            created_at: s.created_at.clone(),
-        }
-    }
-}
+pub use crate::services::studies::StudyInfo;
 
 /// Load a study or answer 404 naming it.
 pub async fn load_study(state: &AppState, id: i64) -> Result<StudyRow, AppError> {
-    store::studies::get(&state.db, id)
-        .await?
-        .ok_or_else(|| AppError::NotFound(format!("study {id}")))
+    Ok(crate::services::studies::load(&state.db, id).await?)
 }
 
 #[derive(Debug, Serialize)]
