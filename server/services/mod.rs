@@ -7,13 +7,18 @@ pub mod activity;
 pub mod backup;
 pub mod cache;
 pub mod catalogue;
+pub mod exports;
 pub mod import;
 pub mod results;
 pub mod review;
 pub mod studies;
+pub mod well_charts;
 pub mod well_page;
 
-use sagline_science::input::InputProblem;
+pub use sagline_science::input::InputProblem;
+
+/// The largest input file accepted (bytes).
+pub const MAX_FILE_BYTES: usize = sagline_science::input::MAX_FILE_BYTES;
 
 /// What can go wrong in an operation, in words a user can act on. The web layer
 /// maps each kind to its HTTP status; database errors stay internal.

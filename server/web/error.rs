@@ -1,9 +1,9 @@
 //! The one error type at the HTTP edge. Internals are logged, never shown.
 
+use crate::services::InputProblem;
 use axum::Json;
 use axum::http::StatusCode;
 use axum::response::{Html, IntoResponse, Response};
-use sagline_science::input::InputProblem;
 use serde_json::json;
 
 #[derive(Debug, thiserror::Error)]

@@ -9,7 +9,7 @@ use crate::services::catalogue::CatalogueView;
 use askama::Template;
 
 /// The caution shown on every page and export.
-pub const CAUTION: &str = "Results are interpretations computed from the data and parameters shown. They support, and do not replace, the judgement of qualified geoscientists and the rules that apply locally.";
+pub use crate::services::exports::CAUTION;
 
 #[derive(Template)]
 #[template(path = "studies.html")]

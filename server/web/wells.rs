@@ -4,10 +4,9 @@
 use super::exports::{self, ExportMeta};
 use super::pages::WellPage;
 use super::studies::StudyInfo;
-use super::well_charts;
 use super::{ApiResult, AppError, AppState, PageResult};
 use crate::services::results::WellResult;
-use crate::services::well_page;
+use crate::services::{well_charts, well_page};
 use crate::store::comments::CommentRow;
 use crate::store::picks::PickRow;
 use crate::store::wells::{SurfaceRow, WellRow};
