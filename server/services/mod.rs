@@ -14,6 +14,7 @@ pub mod review;
 pub mod studies;
 pub mod well_charts;
 pub mod well_page;
+pub mod well_view;
 
 pub use sagline_science::input::InputProblem;
 

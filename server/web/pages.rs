@@ -4,7 +4,6 @@ use super::activity::ActivityView;
 use super::admin::{IssuedPassword, UsersView};
 use super::studies::{StudiesView, StudyView};
 use super::upload::{PreviewView, UploadView};
-use super::wells::WellView;
 use crate::services::catalogue::CatalogueView;
 use askama::Template;
 
@@ -21,12 +20,6 @@ pub struct StudiesPage {
 #[template(path = "study.html")]
 pub struct StudyPage {
     pub view: StudyView,
-}
-
-#[derive(Template)]
-#[template(path = "well.html")]
-pub struct WellPage {
-    pub view: WellView,
 }
 
 #[derive(Template)]
