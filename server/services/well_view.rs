@@ -3,11 +3,14 @@
 
 use super::ServiceError;
 use super::cache::AnalysisCache;
+use super::exports::{ExportMeta, csv_text};
 use super::results::WellResult;
 use super::review::{CommentRow, PickRow, WellRow};
 use super::studies::StudyInfo;
+use super::well_charts;
 use super::well_page::{self, Want};
 use crate::store::wells::SurfaceRow;
+use sagline_charts::ChartSize;
 use sagline_science::analysis::{self, StudyInputs, WellAnalysis, contract::WellOut};
 use serde::{Deserialize, Serialize};
 use sqlx::SqlitePool;
@@ -258,4 +261,165 @@ impl Trial {
             _ => None,
         }
     }
+}
+
+/// A download of the well page: its type, file name and content.
+#[derive(Debug)]
+pub struct WellFile {
+    pub content_type: &'static str,
+    pub name: String,
+    pub body: FileBody,
+}
+
+/// Text as it is, or a chart (SVG) to rasterise with its caption.
+#[derive(Debug)]
+pub enum FileBody {
+    Text(String),
+    Png(String),
+}
+
+impl WellFile {
+    fn text(content_type: &'static str, name: &str, body: String) -> Self {
+        WellFile {
+            content_type,
+            name: name.to_string(),
+            body: FileBody::Text(body),
+        }
+    }
+
+    fn png(name: &str, svg: &str) -> Self {
+        WellFile {
+            content_type: "image/png",
+            name: name.to_string(),
+            body: FileBody::Png(svg.to_string()),
+        }
+    }
+}
+
+/// One download of the well page, built from its analysis.
+pub fn well_file(
+    meta: &ExportMeta,
+    r: &WellResult,
+    a: &WellAnalysis,
+    file: &str,
+) -> Option<WellFile> {
+    let name = &r.well.name;
+    let size = ChartSize::default();
+    let svg = |body: String| {
+        WellFile::text(
+            "image/svg+xml",
+            &format!("{name}-{file}"),
+            meta.stamp_svg(&body),
+        )
+    };
+    let csv = |what: &str, header: &[&str], rows: Vec<Vec<String>>| {
+        WellFile::text(
+            "text/csv; charset=utf-8",
+            &format!("{name}-{file}"),
+            csv_text(&meta, what, header, &rows),
+        )
+    };
+    Some(match file {
+        "subsidence.svg" => svg(sagline_charts::subsidence_chart(
+            &well_charts::subsidence_data(name, a),
+            size,
+        )),
+        "burial.svg" => svg(sagline_charts::burial_chart(
+            &well_charts::burial_data(name, a),
+            size,
+        )),
+        "heat-flow.svg" => svg(sagline_charts::heat_flow_chart(
+            &well_charts::heat_flow_data(name, a),
+            size,
+        )),
+        "subsidence.png" => {
+            let chart =
+                sagline_charts::subsidence_chart(&well_charts::subsidence_data(name, a), size);
+            WellFile::png(&format!("{name}-{file}"), &chart)
+        }
+        "burial.png" => {
+            let chart = sagline_charts::burial_chart(&well_charts::burial_data(name, a), size);
+            WellFile::png(&format!("{name}-{file}"), &chart)
+        }
+        "heat-flow.png" => {
+            let chart =
+                sagline_charts::heat_flow_chart(&well_charts::heat_flow_data(name, a), size);
+            WellFile::png(&format!("{name}-{file}"), &chart)
+        }
+        "history.csv" => {
+            let out = analysis::well_out(a);
+            csv(
+                &format!("Backstripping history of well {name}"),
+                &analysis::CSV_HEADER,
+                analysis::csv_rows(&out),
+            )
+        }
+        "heat-flow.csv" => {
+            let rows = a
+                .interpretation
+                .as_ref()
+                .map(|i| {
+                    i.heat_flow_grid
+                        .iter()
+                        .map(|p| {
+                            vec![
+                                name.clone(),
+                                format!("{:.3}", p.age_ma),
+                                format!("{:.3}", p.value),
+                            ]
+                        })
+                        .collect()
+                })
+                .unwrap_or_default();
+            csv(
+                &format!(
+                    "Basal (mantle) heat flow of the fitted model, no radiogenic heat, well {name}"
+                ),
+                &["well", "age_ma", "heat_flow_mw_m2"],
+                rows,
+            )
+        }
+        "column.csv" => {
+            let rows = column_rows(&r.surfaces)
+                .into_iter()
+                .map(|c| {
+                    vec![
+                        name.clone(),
+                        c.horizon,
+                        c.depth_m.to_string(),
+                        c.age_ma.to_string(),
+                        c.unit_lithology.unwrap_or_default(),
+                        c.water_depth_min_m.to_string(),
+                        c.water_depth_max_m.to_string(),
+                        c.eroded_m.map(|x| x.to_string()).unwrap_or_default(),
+                        c.eroded_at_ma.map(|x| x.to_string()).unwrap_or_default(),
+                    ]
+                })
+                .collect();
+            csv(
+                &format!("Column of well {name}"),
+                &[
+                    "well",
+                    "horizon",
+                    "depth_m",
+                    "age_ma",
+                    "lithology",
+                    "water_depth_min_m",
+                    "water_depth_max_m",
+                    "eroded_m",
+                    "eroded_at_ma",
+                ],
+                rows,
+            )
+        }
+        "analysis.json" => {
+            let body = serde_json::json!({ "export": meta, "wells": [analysis::well_out(a)] });
+            WellFile::text(
+                "application/json",
+                &format!("{name}-analysis.json"),
+                serde_json::to_string_pretty(&body).unwrap_or_default(),
+            )
+        }
+        _ => return None,
+    })
 }
