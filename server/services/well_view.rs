@@ -316,7 +316,7 @@ pub fn well_file(
         WellFile::text(
             "text/csv; charset=utf-8",
             &format!("{name}-{file}"),
-            csv_text(&meta, what, header, &rows),
+            csv_text(meta, what, header, &rows),
         )
     };
     Some(match file {

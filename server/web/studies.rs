@@ -383,7 +383,7 @@ fn study_file(
             "image/svg+xml",
             &format!("{base}-map.svg"),
             meta.stamp_svg(&sagline_charts::well_map_chart(
-                &map_data(&base, &rows),
+                &map_data(&base, rows),
                 ChartSize::default(),
             )),
         ),
@@ -396,14 +396,14 @@ fn study_file(
                 "image/svg+xml",
                 &format!("{base}-rift-timing.svg"),
                 meta.stamp_svg(&sagline_charts::rift_timing_chart(
-                    &rift_timing_data(&base, &rows),
+                    &rift_timing_data(&base, rows),
                     size,
                 )),
             )
         }
         "map.png" => {
             let chart =
-                sagline_charts::well_map_chart(&map_data(&base, &rows), ChartSize::default());
+                sagline_charts::well_map_chart(&map_data(&base, rows), ChartSize::default());
             exports::png_download(&meta, &format!("{base}-map.png"), &chart)
         }
         "rift-timing.png" => {
@@ -411,7 +411,7 @@ fn study_file(
                 width: 900,
                 height: rift_chart_height(rows.len()),
             };
-            let chart = sagline_charts::rift_timing_chart(&rift_timing_data(&base, &rows), size);
+            let chart = sagline_charts::rift_timing_chart(&rift_timing_data(&base, rows), size);
             exports::png_download(&meta, &format!("{base}-rift-timing.png"), &chart)
         }
         "analysis.json" => {
