@@ -1,7 +1,6 @@
 //! The activity log of a study: every change with who, when, before and after.
 
 use super::exports::{self, ExportMeta};
-use super::pages::ActivityPage;
 use super::studies::{StudyInfo, load_study};
 use super::{ApiResult, AppState, PageResult};
 use crate::services;
@@ -128,4 +127,10 @@ async fn activity_csv(
         &format!("{}-activity.csv", view.study.name),
         body,
     ))
+}
+
+#[derive(Template)]
+#[template(path = "activity.html")]
+pub struct ActivityPage {
+    pub view: ActivityView,
 }

@@ -3,7 +3,6 @@
 //! a user out everywhere. Every change is recorded in the activity log by
 //! `services::accounts`.
 
-use super::pages::UsersPage;
 use super::{ApiResult, AppError, AppState, PageResult};
 use crate::auth::Role;
 use crate::services::ServiceError;
@@ -307,4 +306,14 @@ async fn sign_out_json(
 ) -> ApiResult<Json<serde_json::Value>> {
     let ended = accounts::sign_out_everywhere(&state.db, id, &admin.name).await?;
     Ok(Json(serde_json::json!({ "sessions_ended": ended })))
+}
+
+#[derive(Template)]
+#[template(path = "users.html")]
+pub struct UsersPage {
+    pub view: UsersView,
+    pub notice: Option<String>,
+    /// A password to show this once (a new account or a reset).
+    pub issued: Option<IssuedPassword>,
+    pub problems: Vec<String>,
 }

@@ -1,7 +1,6 @@
 //! The lithology catalogue, model parameters and sea-level curve of a study: view and edit.
 
 use super::auth::CSRF_FIELD;
-use super::pages::CataloguePage;
 use super::studies::load_study;
 use super::{ApiResult, AppError, AppState, HtmlError, PageResult};
 use crate::services::accounts::SignedIn;
@@ -150,4 +149,12 @@ async fn delete_lithology_form(
         Err(ServiceError::Conflict(msg)) => render(&state, id, vec![msg], None).await,
         Err(e) => Err(HtmlError(e.into())),
     }
+}
+
+#[derive(Template)]
+#[template(path = "catalogue.html")]
+pub struct CataloguePage {
+    pub view: CatalogueView,
+    pub problems: Vec<String>,
+    pub notice: Option<String>,
 }

@@ -1,7 +1,6 @@
 //! The studies list and the study overview.
 
 use super::exports::{self, ExportMeta};
-use super::pages::{StudiesPage, StudyPage};
 use super::{ApiResult, AppError, AppState, PageResult};
 use crate::services::results::{self, WellResult};
 use crate::services::studies::StudyRow;
@@ -457,4 +456,16 @@ async fn study_json(
     Path(id): Path<i64>,
 ) -> ApiResult<Json<StudyView>> {
     Ok(Json(study_view(&state, id, false).await?))
+}
+
+#[derive(Template)]
+#[template(path = "studies.html")]
+pub struct StudiesPage {
+    pub view: StudiesView,
+}
+
+#[derive(Template)]
+#[template(path = "study.html")]
+pub struct StudyPage {
+    pub view: StudyView,
 }
