@@ -121,7 +121,7 @@ impl AppError {
             AppError::Invalid(p) => p.iter().map(|p| p.to_string()).collect(),
             _ => Vec::new(),
         };
-        let page = super::pages::ErrorPage {
+        let page = ErrorPage {
             status: status.as_u16(),
             message: self.public_message(),
             problems,
@@ -161,3 +161,12 @@ impl IntoResponse for HtmlError {
 
 pub type ApiResult<T> = Result<T, AppError>;
 pub type PageResult<T> = Result<T, HtmlError>;
+
+/// The page of an error answered to a browser.
+#[derive(askama::Template)]
+#[template(path = "error.html")]
+pub struct ErrorPage {
+    pub status: u16,
+    pub message: String,
+    pub problems: Vec<String>,
+}

@@ -1,4 +1,4 @@
-//! The page templates that have no feature module of their own here (sign-in, error) and
+//! The page templates that have no feature module of their own here (sign-in) and
 //! the upload pages; each feature keeps its page struct beside its view.
 
 use super::upload::{PreviewView, UploadView};
@@ -27,14 +27,6 @@ pub struct LoginPage {
     pub next: String,
     pub name: String,
     pub message: Option<String>,
-}
-
-#[derive(Template)]
-#[template(path = "error.html")]
-pub struct ErrorPage {
-    pub status: u16,
-    pub message: String,
-    pub problems: Vec<String>,
 }
 
 /// Formatting helpers callable from templates.
