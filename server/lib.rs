@@ -3,6 +3,10 @@
 //! The science core, the input parsing and the analysis contract are the crate
 //! `sagline_science` (server/science/), and the charts the crate `sagline_charts`
 //! (server/charts/); everything here depends on them, never the other way round.
+//!
+//! Inside this crate dependencies point one way: `web` → `services` → `store`. The web
+//! layer parses, calls a service and renders; services own every operation (reads,
+//! analyses, changes) and re-export the few store rows and contract types the views show.
 
 /// Accounts and access without I/O: roles, the access rules, password hashing, session tokens.
 pub mod auth;
@@ -20,7 +24,8 @@ pub mod demo_build;
 pub mod section_batch;
 /// Starting and stopping the web server.
 pub mod server;
-/// Operations that change data: one transaction each, with their activity-log row.
+/// Operations: every read, analysis and change a page or an API call needs (changes in one
+/// transaction each, with their activity-log row).
 pub mod services;
 /// The store: every SQL statement, as functions taking an executor.
 pub mod store;

@@ -85,6 +85,10 @@ pub struct CacheStats {
     pub hits: u64,
     pub misses: u64,
     pub entries: usize,
+    /// Wells backstripped (each computed analysis backstrips its column once).
+    pub backstrips: u64,
+    /// Stretching-model interpretations computed (one per analysed timing).
+    pub interpretations: u64,
 }
 
 /// An in-memory cache of computed values keyed by content, bounded by the total
@@ -94,6 +98,8 @@ pub struct ContentCache<V> {
     entries: moka::sync::Cache<ContentKey, Arc<V>>,
     hits: AtomicU64,
     misses: AtomicU64,
+    backstrips: AtomicU64,
+    interpretations: AtomicU64,
 }
 
 impl<V> std::fmt::Debug for ContentCache<V> {
@@ -116,6 +122,8 @@ impl<V: Send + Sync + 'static> ContentCache<V> {
                 .build(),
             hits: AtomicU64::new(0),
             misses: AtomicU64::new(0),
+            backstrips: AtomicU64::new(0),
+            interpretations: AtomicU64::new(0),
         }
     }
 
@@ -138,6 +146,31 @@ impl<V: Send + Sync + 'static> ContentCache<V> {
         found
     }
 
+    /// The value held for `key`, if any (a hit or a miss is counted).
+    pub fn get(&self, key: ContentKey) -> Option<Arc<V>> {
+        let found = self.entries.get(&key);
+        let counter = if found.is_some() {
+            &self.hits
+        } else {
+            &self.misses
+        };
+        counter.fetch_add(1, Ordering::Relaxed);
+        found
+    }
+
+    /// Keep a value computed elsewhere (the well page computes two timings from one
+    /// backstrip and stores both).
+    pub fn insert(&self, key: ContentKey, value: Arc<V>) {
+        self.entries.insert(key, value);
+    }
+
+    /// Count work done for misses: `backstrips` columns restored, `interpretations` fits made.
+    pub fn count_work(&self, backstrips: u64, interpretations: u64) {
+        self.backstrips.fetch_add(backstrips, Ordering::Relaxed);
+        self.interpretations
+            .fetch_add(interpretations, Ordering::Relaxed);
+    }
+
     /// Counters, and the entries held once pending evictions have run.
     pub fn stats(&self) -> CacheStats {
         self.entries.run_pending_tasks();
@@ -145,6 +178,8 @@ impl<V: Send + Sync + 'static> ContentCache<V> {
             hits: self.hits.load(Ordering::Relaxed),
             misses: self.misses.load(Ordering::Relaxed),
             entries: self.entries.entry_count() as usize,
+            backstrips: self.backstrips.load(Ordering::Relaxed),
+            interpretations: self.interpretations.load(Ordering::Relaxed),
         }
     }
 

@@ -3,14 +3,24 @@
 //! that same transaction, so a change and its record land together or not at all.
 
 pub mod accounts;
+pub mod activity;
 pub mod backup;
 pub mod cache;
+pub mod catalogue;
+pub mod exports;
 pub mod import;
 pub mod results;
 pub mod review;
+pub mod studies;
 pub mod upload;
+pub mod well_charts;
+pub mod well_page;
+pub mod well_view;
 
-use sagline_science::input::InputProblem;
+pub use sagline_science::input::InputProblem;
+
+/// The largest input file accepted (bytes).
+pub const MAX_FILE_BYTES: usize = sagline_science::input::MAX_FILE_BYTES;
 
 /// What can go wrong in an operation, in words a user can act on. The web layer
 /// maps each kind to its HTTP status; database errors stay internal.
@@ -263,6 +273,16 @@ pub async fn study_inputs(
         .await?
         .ok_or_else(|| ServiceError::NotFound(format!("study {study_id}")))?;
     let rows = store::lithologies::list(db, study_id).await?;
+    let points = store::sea_level::points(db, study_id).await?;
+    inputs_of(&study, rows, points)
+}
+
+/// A study's analysis inputs from its stored rows (no SQL).
+pub fn inputs_of(
+    study: &store::studies::StudyRow,
+    rows: Vec<store::lithologies::LithologyRow>,
+    points: Vec<sagline_science::SeaLevelPoint>,
+) -> Result<sagline_science::analysis::StudyInputs, ServiceError> {
     let lithologies = rows
         .into_iter()
         .map(|r| {
@@ -280,7 +300,6 @@ pub async fn study_inputs(
         .collect::<Result<Vec<_>, _>>()?;
     let catalogue =
         Catalogue::new(lithologies).map_err(|e| ServiceError::Invalid(e.to_string()))?;
-    let points = store::sea_level::points(db, study_id).await?;
     let sea_level = sagline_science::SeaLevelCurve::new(points)
         .map_err(|e| ServiceError::Invalid(e.to_string()))?;
     Ok(sagline_science::analysis::StudyInputs {

@@ -180,6 +180,7 @@ fn analyse_cached(
     // Another request missing the same well waits for this computation.
     cache
         .get_or_compute(key, || {
+            cache.count_work(1, 1);
             analysis::analyse_well(&column, inputs, timing).map_err(|e| e.to_string())
         })
         .map_err(|e| e.as_ref().clone())

@@ -5,9 +5,10 @@
 use super::ServiceError;
 use crate::store;
 use crate::store::activity::Change;
-use crate::store::comments::CommentRow;
-use crate::store::picks::{PickRow, PickValues};
-use crate::store::wells::WellRow;
+pub use crate::store::comments::CommentRow;
+pub use crate::store::picks::PickRow;
+use crate::store::picks::PickValues;
+pub use crate::store::wells::WellRow;
 use serde::Deserialize;
 use sqlx::SqlitePool;
 
@@ -295,4 +296,27 @@ pub async fn study_timings(
             .push((p.rift_onset_ma, p.rift_end_ma));
     }
     Ok(out)
+}
+
+/// A well of a study, or not found (naming the study when it is the study that is missing).
+pub async fn well(db: &SqlitePool, study_id: i64, well_id: i64) -> Result<WellRow, ServiceError> {
+    if let Some(w) = store::wells::get(db, study_id, well_id).await? {
+        return Ok(w);
+    }
+    if store::studies::get(db, study_id).await?.is_none() {
+        return Err(ServiceError::NotFound(format!("study {study_id}")));
+    }
+    Err(ServiceError::NotFound(format!(
+        "well {well_id} in study {study_id}"
+    )))
+}
+
+/// A well's picks and its discussion thread.
+pub async fn thread(
+    db: &SqlitePool,
+    well_id: i64,
+) -> Result<(Vec<PickRow>, Vec<CommentRow>), ServiceError> {
+    let picks = store::picks::for_well(db, well_id).await?;
+    let comments = store::comments::for_well(db, well_id).await?;
+    Ok((picks, comments))
 }

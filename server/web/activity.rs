@@ -1,12 +1,10 @@
 //! The activity log of a study: every change with who, when, before and after.
 
 use super::exports::{self, ExportMeta};
-use super::pages::ActivityPage;
 use super::studies::{StudyInfo, load_study};
 use super::{ApiResult, AppState, PageResult};
 use crate::services;
-use crate::store;
-use crate::store::activity::ActivityRow;
+use crate::services::activity::{self as log, ActivityRow};
 use askama::Template;
 use axum::extract::{Path, Query, State};
 use axum::response::Html;
@@ -62,16 +60,14 @@ async fn activity_view(
     let action = filter.action.filter(|a| !a.trim().is_empty());
     let actor = filter.actor.filter(|a| !a.trim().is_empty());
     let limit = filter.limit.unwrap_or(500).clamp(1, 100_000);
-    let mut conn = state.db.acquire().await?;
-    let (actions, actors) = store::activity::kinds_and_actors(&mut conn, id).await?;
+    let found = log::study_log(&state.db, id, action.as_deref(), actor.as_deref(), limit).await?;
     Ok(ActivityView {
         study: StudyInfo::from(&study),
-        entries: store::activity::list(&mut *conn, id, action.as_deref(), actor.as_deref(), limit)
-            .await?,
+        entries: found.entries,
         action,
         actor,
-        actions,
-        actors,
+        actions: found.actions,
+        actors: found.actors,
     })
 }
 
@@ -131,4 +127,10 @@ async fn activity_csv(
         &format!("{}-activity.csv", view.study.name),
         body,
     ))
+}
+
+#[derive(Template)]
+#[template(path = "activity.html")]
+pub struct ActivityPage {
+    pub view: ActivityView,
 }

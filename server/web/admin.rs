@@ -3,14 +3,11 @@
 //! a user out everywhere. Every change is recorded in the activity log by
 //! `services::accounts`.
 
-use super::pages::UsersPage;
 use super::{ApiResult, AppError, AppState, PageResult};
 use crate::auth::Role;
 use crate::services::ServiceError;
 use crate::services::accounts::{self, SignedIn};
-use crate::store;
-use crate::store::activity::ActivityRow;
-use crate::store::users::UserRow;
+use crate::services::activity::{self as log, ActivityRow, UserRow};
 use askama::Template;
 use axum::extract::{Path, State};
 use axum::http::header::CACHE_CONTROL;
@@ -68,7 +65,7 @@ async fn users_view(state: &AppState) -> ApiResult<UsersView> {
                 summary: role.summary(),
             })
             .collect(),
-        changes: store::users::account_activity(&state.db, 50).await?,
+        changes: log::account_changes(&state.db, 50).await?,
     })
 }
 
@@ -309,4 +306,14 @@ async fn sign_out_json(
 ) -> ApiResult<Json<serde_json::Value>> {
     let ended = accounts::sign_out_everywhere(&state.db, id, &admin.name).await?;
     Ok(Json(serde_json::json!({ "sessions_ended": ended })))
+}
+
+#[derive(Template)]
+#[template(path = "users.html")]
+pub struct UsersPage {
+    pub view: UsersView,
+    pub notice: Option<String>,
+    /// A password to show this once (a new account or a reset).
+    pub issued: Option<IssuedPassword>,
+    pub problems: Vec<String>,
 }

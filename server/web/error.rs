@@ -1,9 +1,9 @@
 //! The one error type at the HTTP edge. Internals are logged, never shown.
 
+use crate::services::InputProblem;
 use axum::Json;
 use axum::http::StatusCode;
 use axum::response::{Html, IntoResponse, Response};
-use sagline_science::input::InputProblem;
 use serde_json::json;
 
 #[derive(Debug, thiserror::Error)]
@@ -121,7 +121,7 @@ impl AppError {
             AppError::Invalid(p) => p.iter().map(|p| p.to_string()).collect(),
             _ => Vec::new(),
         };
-        let page = super::pages::ErrorPage {
+        let page = ErrorPage {
             status: status.as_u16(),
             message: self.public_message(),
             problems,
@@ -161,3 +161,12 @@ impl IntoResponse for HtmlError {
 
 pub type ApiResult<T> = Result<T, AppError>;
 pub type PageResult<T> = Result<T, HtmlError>;
+
+/// The page of an error answered to a browser.
+#[derive(askama::Template)]
+#[template(path = "error.html")]
+pub struct ErrorPage {
+    pub status: u16,
+    pub message: String,
+    pub problems: Vec<String>,
+}

@@ -15,7 +15,6 @@ pub mod review;
 pub mod staging;
 pub mod studies;
 pub mod upload;
-pub mod well_charts;
 pub mod wells;
 
 use axum::Router;
@@ -31,7 +30,7 @@ pub use error::{ApiResult, AppError, HtmlError, PageResult};
 
 /// Largest request body accepted (uploads included): the tops limit plus room for the
 /// wells and sea-level files and the form fields.
-pub const MAX_BODY_BYTES: usize = sagline_science::input::MAX_FILE_BYTES * 2 + 1024 * 1024;
+pub const MAX_BODY_BYTES: usize = crate::services::MAX_FILE_BYTES * 2 + 1024 * 1024;
 
 /// What every handler can reach.
 #[derive(Clone)]

@@ -1,33 +1,11 @@
-//! Askama page templates. Each page wraps the view that its JSON twin serialises.
+//! The page templates that have no feature module of their own here (sign-in) and
+//! the upload pages; each feature keeps its page struct beside its view.
 
-use super::activity::ActivityView;
-use super::admin::{IssuedPassword, UsersView};
-use super::catalogue::CatalogueView;
-use super::studies::{StudiesView, StudyView};
 use super::upload::{PreviewView, UploadView};
-use super::wells::WellView;
 use askama::Template;
 
 /// The caution shown on every page and export.
-pub const CAUTION: &str = "Results are interpretations computed from the data and parameters shown. They support, and do not replace, the judgement of qualified geoscientists and the rules that apply locally.";
-
-#[derive(Template)]
-#[template(path = "studies.html")]
-pub struct StudiesPage {
-    pub view: StudiesView,
-}
-
-#[derive(Template)]
-#[template(path = "study.html")]
-pub struct StudyPage {
-    pub view: StudyView,
-}
-
-#[derive(Template)]
-#[template(path = "well.html")]
-pub struct WellPage {
-    pub view: WellView,
-}
+pub use crate::services::exports::CAUTION;
 
 #[derive(Template)]
 #[template(path = "upload.html")]
@@ -42,20 +20,6 @@ pub struct PreviewPage {
     pub view: PreviewView,
 }
 
-#[derive(Template)]
-#[template(path = "catalogue.html")]
-pub struct CataloguePage {
-    pub view: CatalogueView,
-    pub problems: Vec<String>,
-    pub notice: Option<String>,
-}
-
-#[derive(Template)]
-#[template(path = "activity.html")]
-pub struct ActivityPage {
-    pub view: ActivityView,
-}
-
 /// The sign-in page; `next` is where to go afterwards (a local path).
 #[derive(Template)]
 #[template(path = "login.html")]
@@ -63,24 +27,6 @@ pub struct LoginPage {
     pub next: String,
     pub name: String,
     pub message: Option<String>,
-}
-
-#[derive(Template)]
-#[template(path = "users.html")]
-pub struct UsersPage {
-    pub view: UsersView,
-    pub notice: Option<String>,
-    /// A password to show this once (a new account or a reset).
-    pub issued: Option<IssuedPassword>,
-    pub problems: Vec<String>,
-}
-
-#[derive(Template)]
-#[template(path = "error.html")]
-pub struct ErrorPage {
-    pub status: u16,
-    pub message: String,
-    pub problems: Vec<String>,
 }
 
 /// Formatting helpers callable from templates.

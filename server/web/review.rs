@@ -6,10 +6,7 @@ use super::wells::{PageMessage, render_well_page};
 use super::{ApiResult, AppError, AppState, PageResult};
 use crate::services::ServiceError;
 use crate::services::accounts::SignedIn;
-use crate::services::review::{self, PickEdit, SavedPick};
-use crate::store;
-use crate::store::comments::CommentRow;
-use crate::store::wells::WellRow;
+use crate::services::review::{self, CommentRow, PickEdit, PickRow, SavedPick, WellRow};
 use axum::extract::{Path, State};
 use axum::http::StatusCode;
 use axum::response::{IntoResponse, Redirect, Response};
@@ -38,10 +35,7 @@ pub fn routes() -> Router<AppState> {
 }
 
 async fn load_well(state: &AppState, study_id: i64, well_id: i64) -> Result<WellRow, AppError> {
-    super::studies::load_study(state, study_id).await?;
-    store::wells::get(&state.db, study_id, well_id)
-        .await?
-        .ok_or_else(|| AppError::NotFound(format!("well {well_id} in study {study_id}")))
+    Ok(review::well(&state.db, study_id, well_id).await?)
 }
 
 /// Tell the study's open pages about a change.
@@ -210,8 +204,8 @@ fn shorten(text: &str) -> String {
 /// The review part of a well: picks and comments.
 #[derive(Debug, Serialize)]
 pub struct ReviewView {
-    pub picks: Vec<store::picks::PickRow>,
-    pub comments: Vec<store::comments::CommentRow>,
+    pub picks: Vec<PickRow>,
+    pub comments: Vec<CommentRow>,
 }
 
 async fn review_json(
@@ -219,10 +213,8 @@ async fn review_json(
     Path((id, well_id)): Path<(i64, i64)>,
 ) -> ApiResult<Json<ReviewView>> {
     let well = load_well(&state, id, well_id).await?;
-    Ok(Json(ReviewView {
-        picks: store::picks::for_well(&state.db, well.id).await?,
-        comments: store::comments::for_well(&state.db, well.id).await?,
-    }))
+    let (picks, comments) = review::thread(&state.db, well.id).await?;
+    Ok(Json(ReviewView { picks, comments }))
 }
 
 /// `PUT /api/studies/{id}/wells/{well_id}/picks/{event}` with
@@ -244,7 +236,7 @@ async fn pick_json(
     user: SignedIn,
     Path((id, well_id, event)): Path<(i64, i64, i64)>,
     Json(body): Json<PickBody>,
-) -> ApiResult<Json<store::picks::PickRow>> {
+) -> ApiResult<Json<PickRow>> {
     let well = load_well(&state, id, well_id).await?;
     let edit = PickEdit {
         event,
@@ -270,7 +262,7 @@ async fn clear_json(
     user: SignedIn,
     Path((id, well_id, event)): Path<(i64, i64, i64)>,
     Json(body): Json<ClearBody>,
-) -> ApiResult<Json<store::picks::PickRow>> {
+) -> ApiResult<Json<PickRow>> {
     let well = load_well(&state, id, well_id).await?;
     let removed = review::delete_pick(&state.db, &well, event, body.version, &user.name).await?;
     announce_cleared(&state, &well, event, &user.name);
@@ -289,7 +281,7 @@ async fn comment_json(
     user: SignedIn,
     Path((id, well_id)): Path<(i64, i64)>,
     Json(body): Json<CommentBody>,
-) -> ApiResult<(StatusCode, Json<store::comments::CommentRow>)> {
+) -> ApiResult<(StatusCode, Json<CommentRow>)> {
     let well = load_well(&state, id, well_id).await?;
     let c = review::add_comment(&state.db, &well, body.pick_event, &body.body, &user.name).await?;
     announce_comment(&state, &well, &c);

@@ -1,12 +1,12 @@
 //! The studies list and the study overview.
 
 use super::exports::{self, ExportMeta};
-use super::pages::{StudiesPage, StudyPage};
 use super::{ApiResult, AppError, AppState, PageResult};
 use crate::services::results::{self, WellResult};
+use crate::services::studies::StudyRow;
 use crate::store;
 use crate::store::picks::PickRow;
-use crate::store::studies::{StudyRow, StudySummary};
+use crate::store::studies::StudySummary;
 use crate::store::uploads::UploadRow;
 use crate::store::wells::WellSummary;
 use askama::Template;
@@ -29,31 +29,11 @@ pub fn routes() -> Router<AppState> {
         .route("/studies/{id}/download/{file}", get(study_download))
 }
 
-/// The study header shown on every page of a study.
-#[derive(Debug, Clone, Serialize)]
-pub struct StudyInfo {
-    pub id: i64,
-    pub name: String,
-    pub description: String,
-    pub created_at: String,
-}
-
-impl From<&StudyRow> for StudyInfo {
-    fn from(s: &StudyRow) -> Self {
-        StudyInfo {
-            id: s.id,
-            name: s.name.clone(),
-            description: s.description.clone(),
-            created_at: s.created_at.clone(),
-        }
-    }
-}
+pub use crate::services::studies::StudyInfo;
 
 /// Load a study or answer 404 naming it.
 pub async fn load_study(state: &AppState, id: i64) -> Result<StudyRow, AppError> {
-    store::studies::get(&state.db, id)
-        .await?
-        .ok_or_else(|| AppError::NotFound(format!("study {id}")))
+    Ok(crate::services::studies::load(&state.db, id).await?)
 }
 
 #[derive(Debug, Serialize)]
@@ -295,11 +275,22 @@ fn rift_timing_data(study: &str, rows: &[OverviewRow]) -> RiftTimingData {
     }
 }
 
-async fn study_view(state: &AppState, id: i64) -> ApiResult<StudyView> {
+/// The overview; `draw` its charts only for the page that shows them.
+async fn study_view(state: &AppState, id: i64, draw: bool) -> ApiResult<StudyView> {
     let study = load_study(state, id).await?;
     let summaries = store::wells::summaries(&state.db, id).await?;
     let (_, wells) = overview_rows(state, id, &summaries).await?;
-    let charts = overview_charts(&study.name, &wells);
+    let (wells, charts) = if draw {
+        let name = study.name.clone();
+        tokio::task::spawn_blocking(move || {
+            let charts = overview_charts(&name, &wells);
+            (wells, charts)
+        })
+        .await
+        .map_err(|e| AppError::Internal(anyhow::anyhow!("chart task failed: {e}")))?
+    } else {
+        (wells, OverviewCharts::default())
+    };
     Ok(StudyView {
         study: StudyInfo::from(&study),
         wells,
@@ -319,8 +310,29 @@ async fn study_download(
     let summaries = store::wells::summaries(&state.db, id).await?;
     let (inputs, rows) = overview_rows(&state, id, &summaries).await?;
     let meta = ExportMeta::new(&study.name, &inputs);
+    let memo = if file == "analysis.json" {
+        Some(results::study_results_memo(&state.db, &state.cache, &state.study_memo, id).await?)
+    } else {
+        None
+    };
     let base = study.name.clone();
-    Ok(match file.as_str() {
+    // Drawing, rasterising and serialising stay off the async workers.
+    tokio::task::spawn_blocking(move || study_file(&meta, &base, &rows, memo.as_deref(), &file))
+        .await
+        .map_err(|e| AppError::Internal(anyhow::anyhow!("download task failed: {e}")))?
+}
+
+/// One download of the overview.
+fn study_file(
+    meta: &ExportMeta,
+    base: &str,
+    rows: &[OverviewRow],
+    memo: Option<&results::StudyResults>,
+    file: &str,
+) -> ApiResult<Response> {
+    let meta = meta.clone();
+    let base = base.to_string();
+    Ok(match file {
         "wells.csv" => {
             let num = |x: Option<f64>, d: usize| x.map(|v| format!("{v:.d$}")).unwrap_or_default();
             let table: Vec<Vec<String>> = rows
@@ -370,7 +382,7 @@ async fn study_download(
             "image/svg+xml",
             &format!("{base}-map.svg"),
             meta.stamp_svg(&sagline_charts::well_map_chart(
-                &map_data(&base, &rows),
+                &map_data(&base, rows),
                 ChartSize::default(),
             )),
         ),
@@ -383,14 +395,14 @@ async fn study_download(
                 "image/svg+xml",
                 &format!("{base}-rift-timing.svg"),
                 meta.stamp_svg(&sagline_charts::rift_timing_chart(
-                    &rift_timing_data(&base, &rows),
+                    &rift_timing_data(&base, rows),
                     size,
                 )),
             )
         }
         "map.png" => {
             let chart =
-                sagline_charts::well_map_chart(&map_data(&base, &rows), ChartSize::default());
+                sagline_charts::well_map_chart(&map_data(&base, rows), ChartSize::default());
             exports::png_download(&meta, &format!("{base}-map.png"), &chart)
         }
         "rift-timing.png" => {
@@ -398,13 +410,15 @@ async fn study_download(
                 width: 900,
                 height: rift_chart_height(rows.len()),
             };
-            let chart = sagline_charts::rift_timing_chart(&rift_timing_data(&base, &rows), size);
+            let chart = sagline_charts::rift_timing_chart(&rift_timing_data(&base, rows), size);
             exports::png_download(&meta, &format!("{base}-rift-timing.png"), &chart)
         }
         "analysis.json" => {
-            let memo =
-                results::study_results_memo(&state.db, &state.cache, &state.study_memo, id).await?;
-            let (inputs, results) = &*memo;
+            let Some((inputs, results)) = memo else {
+                return Err(AppError::Internal(anyhow::anyhow!(
+                    "the study's results were not loaded"
+                )));
+            };
             let wells: Vec<_> = results
                 .iter()
                 .map(|r| match &r.outcome {
@@ -433,7 +447,7 @@ async fn study_page(
     State(state): State<AppState>,
     Path(id): Path<i64>,
 ) -> PageResult<Html<String>> {
-    let view = study_view(&state, id).await?;
+    let view = study_view(&state, id, true).await?;
     Ok(Html(StudyPage { view }.render()?))
 }
 
@@ -441,5 +455,17 @@ async fn study_json(
     State(state): State<AppState>,
     Path(id): Path<i64>,
 ) -> ApiResult<Json<StudyView>> {
-    Ok(Json(study_view(&state, id).await?))
+    Ok(Json(study_view(&state, id, false).await?))
+}
+
+#[derive(Template)]
+#[template(path = "studies.html")]
+pub struct StudiesPage {
+    pub view: StudiesView,
+}
+
+#[derive(Template)]
+#[template(path = "study.html")]
+pub struct StudyPage {
+    pub view: StudyView,
 }

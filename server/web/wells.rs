@@ -2,15 +2,9 @@
 //! restored column and backstripping results at each age.
 
 use super::exports::{self, ExportMeta};
-use super::pages::WellPage;
-use super::studies::{StudyInfo, load_study};
-use super::well_charts;
 use super::{ApiResult, AppError, AppState, PageResult};
-use crate::services::results::{self, WellResult};
-use crate::store;
-use crate::store::comments::CommentRow;
-use crate::store::picks::PickRow;
-use crate::store::wells::{SurfaceRow, WellRow};
+use crate::services::well_charts::{self, WellCharts};
+use crate::services::well_view::{self, FileBody, Trial, WellView};
 use askama::Template;
 use axum::extract::Query;
 use axum::extract::{Path, State};
@@ -19,9 +13,7 @@ use axum::response::IntoResponse;
 use axum::response::{Html, Response};
 use axum::routing::get;
 use axum::{Json, Router};
-use sagline_charts::ChartSize;
-use sagline_science::analysis::{self, StudyInputs, WellAnalysis, contract::WellOut};
-use serde::{Deserialize, Serialize};
+use serde::Serialize;
 
 pub fn routes() -> Router<AppState> {
     Router::new()
@@ -31,292 +23,6 @@ pub fn routes() -> Router<AppState> {
             "/studies/{id}/wells/{well_id}/download/{file}",
             get(well_download),
         )
-}
-
-/// One row of the column table: a surface and the unit below it.
-#[derive(Debug, Clone, Serialize)]
-pub struct ColumnRow {
-    pub horizon: String,
-    pub depth_m: f64,
-    pub age_ma: f64,
-    /// Lithology of the unit below this surface (None on the deepest surface).
-    pub unit_lithology: Option<String>,
-    /// Present thickness of the unit below (m).
-    pub unit_thickness_m: Option<f64>,
-    pub water_depth_min_m: f64,
-    pub water_depth_max_m: f64,
-    pub eroded_m: Option<f64>,
-    pub eroded_at_ma: Option<f64>,
-}
-
-fn column_rows(surfaces: &[SurfaceRow]) -> Vec<ColumnRow> {
-    surfaces
-        .iter()
-        .enumerate()
-        .map(|(i, s)| ColumnRow {
-            horizon: s.horizon.clone(),
-            depth_m: s.depth_m,
-            age_ma: s.age_ma,
-            unit_lithology: s.lithology.clone(),
-            unit_thickness_m: surfaces.get(i + 1).map(|below| below.depth_m - s.depth_m),
-            water_depth_min_m: s.water_depth_min_m,
-            water_depth_max_m: s.water_depth_max_m,
-            eroded_m: s.eroded_m,
-            eroded_at_ma: s.eroded_at_ma,
-        })
-        .collect()
-}
-
-/// One unit of the column restored to its position at an age.
-#[derive(Debug, Clone, Serialize)]
-pub struct RestoredUnitView {
-    pub top_horizon: String,
-    pub base_horizon: String,
-    pub lithology: String,
-    pub top_m: f64,
-    pub base_m: f64,
-    pub thickness_m: f64,
-    pub mean_porosity: f64,
-    pub density_kg_m3: f64,
-}
-
-/// The restored column at one age.
-#[derive(Debug, Clone, Serialize)]
-pub struct RestoredStepView {
-    pub age_ma: f64,
-    pub depositional_horizon: String,
-    pub units: Vec<RestoredUnitView>,
-}
-
-#[derive(Debug, Serialize)]
-pub struct WellView {
-    pub study: StudyInfo,
-    pub well: WellRow,
-    pub column: Vec<ColumnRow>,
-    /// The analysis in the shape of the batch JSON contract (None if it failed).
-    pub analysis: Option<WellOut>,
-    /// The restored column at every age, youngest first.
-    pub restored: Vec<RestoredStepView>,
-    /// Why the well could not be analysed, in words a user can act on.
-    pub analysis_error: Option<String>,
-    /// The team's picks (rift events 1 and 2) and the discussion.
-    pub picks: Vec<PickRow>,
-    pub comments: Vec<CommentRow>,
-    /// What the phase search proposes on its own.
-    pub proposal: Option<ProposalView>,
-    /// The trial timing shown instead of the saved picks, if any.
-    pub trial: Option<Trial>,
-    #[serde(skip)]
-    pub message: Option<PageMessage>,
-    #[serde(skip)]
-    pub charts: WellCharts,
-}
-
-fn restored_steps(a: &WellAnalysis) -> Vec<RestoredStepView> {
-    let h = &a.history;
-    h.steps
-        .iter()
-        .rev()
-        .map(|s| RestoredStepView {
-            age_ma: s.age_ma,
-            depositional_horizon: s.depositional_horizon.clone(),
-            units: s
-                .units
-                .iter()
-                .map(|u| RestoredUnitView {
-                    top_horizon: h
-                        .top_horizon(u)
-                        .map(str::to_string)
-                        .unwrap_or_else(|| format!("eroded section on {}", h.base_horizon(u))),
-                    base_horizon: h.base_horizon(u).to_string(),
-                    lithology: h.lithology(u).to_string(),
-                    top_m: u.top_m,
-                    base_m: u.base_m,
-                    thickness_m: u.base_m - u.top_m,
-                    mean_porosity: u.mean_porosity,
-                    density_kg_m3: u.density_kg_m3,
-                })
-                .collect(),
-        })
-        .collect()
-}
-
-/// The charts of the well page, as inline SVG (left out of the JSON twin).
-#[derive(Debug, Default)]
-pub struct WellCharts {
-    pub subsidence: String,
-    pub burial: String,
-    pub heat_flow: String,
-}
-
-/// A well, its stored column and its (cached) analysis.
-async fn well_result(
-    state: &AppState,
-    study_id: i64,
-    well_id: i64,
-    trial: Option<&Trial>,
-) -> ApiResult<(StudyInfo, StudyInputs, WellResult)> {
-    let study = load_study(state, study_id).await?;
-    let well = store::wells::get(&state.db, study_id, well_id)
-        .await?
-        .ok_or_else(|| AppError::NotFound(format!("well {well_id} in study {study_id}")))?;
-    // A trial timing (the pick editor's preview) wins over the team's saved picks.
-    let timing = match trial.and_then(Trial::timing) {
-        Some(t) => Some(t),
-        None => {
-            let picks = store::picks::for_well(&state.db, well.id).await?;
-            (!picks.is_empty()).then(|| {
-                picks
-                    .iter()
-                    .map(|p| (p.rift_onset_ma, p.rift_end_ma))
-                    .collect()
-            })
-        }
-    };
-    let (inputs, result) =
-        results::well_result(&state.db, &state.cache, study_id, well, timing).await?;
-    Ok((StudyInfo::from(&study), inputs, result))
-}
-
-async fn well_view(
-    state: &AppState,
-    study_id: i64,
-    well_id: i64,
-    trial: Option<&Trial>,
-) -> ApiResult<WellView> {
-    let (study, _inputs, r) = well_result(state, study_id, well_id, trial).await?;
-    let picks = store::picks::for_well(&state.db, well_id).await?;
-    let comments = store::comments::for_well(&state.db, well_id).await?;
-    // The automatic proposal beside the team's pick (cached, so cheap when unchanged).
-    let uses_timing = !picks.is_empty() || trial.and_then(Trial::timing).is_some();
-    let proposal = if uses_timing {
-        let (_, p) =
-            results::well_result(&state.db, &state.cache, study_id, r.well.clone(), None).await?;
-        p.outcome.ok().map(|a| ProposalView::of(&a))
-    } else {
-        r.outcome.as_ref().ok().map(|a| ProposalView::of(a))
-    };
-    let (analysis, restored, analysis_error) = match &r.outcome {
-        Ok(a) => (Some(analysis::well_out(a)), restored_steps(a), None),
-        Err(e) => (None, Vec::new(), Some(e.clone())),
-    };
-    let charts = match &r.outcome {
-        Ok(a) => {
-            let size = ChartSize::default();
-            WellCharts {
-                subsidence: sagline_charts::subsidence_chart(
-                    &well_charts::subsidence_data(&r.well.name, a),
-                    size,
-                ),
-                burial: sagline_charts::burial_chart(
-                    &well_charts::burial_data(&r.well.name, a),
-                    size,
-                ),
-                heat_flow: sagline_charts::heat_flow_chart(
-                    &well_charts::heat_flow_data(&r.well.name, a),
-                    size,
-                ),
-            }
-        }
-        Err(_) => WellCharts::default(),
-    };
-    Ok(WellView {
-        study,
-        column: column_rows(&r.surfaces),
-        well: r.well,
-        analysis,
-        restored,
-        analysis_error,
-        picks,
-        comments,
-        proposal,
-        trial: trial.copied().filter(|t| t.timing().is_some()),
-        message: None,
-        charts,
-    })
-}
-
-impl WellView {
-    /// The team's pick of rift event 1 or 2.
-    pub fn pick(&self, event: &i64) -> Option<&PickRow> {
-        self.picks.iter().find(|p| p.event == *event)
-    }
-
-    /// What the pick form of an event starts with: a trial timing being looked at
-    /// (event 1), else the saved pick, else the proposal (event 1), else empty.
-    fn form_value(&self, event: i64, of: impl Fn(f64, f64) -> f64) -> String {
-        let trial = (event == 1)
-            .then(|| self.trial.as_ref().and_then(Trial::timing))
-            .flatten()
-            .map(|t| of(t[0].0, t[0].1));
-        let pick = self
-            .pick(&event)
-            .map(|p| of(p.rift_onset_ma, p.rift_end_ma));
-        let proposal = (event == 1)
-            .then_some(self.proposal.as_ref())
-            .flatten()
-            .and_then(|p| Some(of(p.rift_onset_ma?, p.rift_end_ma?)));
-        trial
-            .or(pick)
-            .or(proposal)
-            .map(|v| v.to_string())
-            .unwrap_or_default()
-    }
-
-    pub fn form_onset(&self, event: &i64) -> String {
-        self.form_value(*event, |onset, _| onset)
-    }
-
-    pub fn form_end(&self, event: &i64) -> String {
-        self.form_value(*event, |_, end| end)
-    }
-}
-
-/// The automatic proposal, shown beside the team's pick.
-#[derive(Debug, Clone, Serialize)]
-pub struct ProposalView {
-    pub rift_onset_ma: Option<f64>,
-    pub rift_end_ma: Option<f64>,
-    pub beta: Option<f64>,
-    pub rms_misfit_m: Option<f64>,
-    pub events: usize,
-}
-
-impl ProposalView {
-    fn of(a: &WellAnalysis) -> Self {
-        // Only the fit: building the whole history of the contract is not needed here.
-        let st = a
-            .interpretation
-            .as_ref()
-            .ok()
-            .and_then(analysis::stretching_out);
-        ProposalView {
-            rift_onset_ma: st.as_ref().map(|s| s.rift_onset_ma),
-            rift_end_ma: st.as_ref().map(|s| s.rift_end_ma),
-            beta: st.as_ref().map(|s| s.beta),
-            rms_misfit_m: st.as_ref().map(|s| s.rms_misfit_m),
-            events: st.as_ref().map(|s| s.rift_events.len()).unwrap_or(0),
-        }
-    }
-}
-
-/// A rift timing tried in the pick editor without saving (query parameters
-/// `trial_onset_ma`, `trial_end_ma`): the page refits and redraws with it.
-#[derive(Debug, Clone, Copy, Default, Deserialize, Serialize)]
-pub struct Trial {
-    #[serde(alias = "rift_onset_ma")]
-    pub trial_onset_ma: Option<f64>,
-    #[serde(alias = "rift_end_ma")]
-    pub trial_end_ma: Option<f64>,
-}
-
-impl Trial {
-    fn timing(&self) -> Option<Vec<(f64, f64)>> {
-        match (self.trial_onset_ma, self.trial_end_ma) {
-            (Some(o), Some(e)) if o.is_finite() && e.is_finite() => Some(vec![(o, e)]),
-            _ => None,
-        }
-    }
 }
 
 /// A message at the top of the well page after a refused save.
@@ -335,6 +41,16 @@ impl PageMessage {
     }
 }
 
+/// The well page: its view, the charts drawn from its analysis, and a message after a
+/// refused save.
+#[derive(Template)]
+#[template(path = "well.html")]
+pub struct WellPage {
+    pub view: WellView,
+    pub message: Option<PageMessage>,
+    pub charts: WellCharts,
+}
+
 /// Render the well page with a status and an optional message (used after a refused save).
 pub async fn render_well_page(
     state: &AppState,
@@ -344,9 +60,18 @@ pub async fn render_well_page(
     message: Option<PageMessage>,
     status: StatusCode,
 ) -> PageResult<Response> {
-    let mut view = well_view(state, study_id, well_id, trial).await?;
-    view.message = message;
-    Ok((status, Html(WellPage { view }.render()?)).into_response())
+    let (view, analysis) =
+        well_view::view(&state.db, &state.cache, study_id, well_id, trial).await?;
+    let charts = match analysis {
+        Some(a) => well_charts::draw(view.well.name.clone(), a).await?,
+        None => WellCharts::default(),
+    };
+    let page = WellPage {
+        view,
+        message,
+        charts,
+    };
+    Ok((status, Html(page.render()?)).into_response())
 }
 
 async fn well_page(
@@ -362,7 +87,8 @@ async fn well_json(
     Path((id, well_id)): Path<(i64, i64)>,
     Query(trial): Query<Trial>,
 ) -> ApiResult<Json<WellView>> {
-    Ok(Json(well_view(&state, id, well_id, Some(&trial)).await?))
+    let (view, _) = well_view::view(&state.db, &state.cache, id, well_id, Some(&trial)).await?;
+    Ok(Json(view))
 }
 
 /// Downloads of the well page: charts as SVG, tables as CSV, the analysis as JSON.
@@ -370,129 +96,21 @@ async fn well_download(
     State(state): State<AppState>,
     Path((id, well_id, file)): Path<(i64, i64, String)>,
 ) -> ApiResult<Response> {
-    let (study, inputs, r) = well_result(&state, id, well_id, None).await?;
+    let (study, inputs, r) = well_view::for_download(&state.db, &state.cache, id, well_id).await?;
     let meta = ExportMeta::new(&study.name, &inputs);
-    let name = &r.well.name;
-    let a = r
-        .outcome
-        .as_ref()
-        .map_err(|e| AppError::Rejected(format!("Well {name} could not be analysed: {e}")))?;
-    let size = ChartSize::default();
-    let svg = |body: String| {
-        exports::download(
-            "image/svg+xml",
-            &format!("{name}-{file}"),
-            meta.stamp_svg(&body),
-        )
-    };
-    let csv = |what: &str, header: &[&str], rows: Vec<Vec<String>>| {
-        exports::download(
-            "text/csv; charset=utf-8",
-            &format!("{name}-{file}"),
-            exports::csv_text(&meta, what, header, &rows),
-        )
-    };
-    Ok(match file.as_str() {
-        "subsidence.svg" => svg(sagline_charts::subsidence_chart(
-            &well_charts::subsidence_data(name, a),
-            size,
-        )),
-        "burial.svg" => svg(sagline_charts::burial_chart(
-            &well_charts::burial_data(name, a),
-            size,
-        )),
-        "heat-flow.svg" => svg(sagline_charts::heat_flow_chart(
-            &well_charts::heat_flow_data(name, a),
-            size,
-        )),
-        "subsidence.png" => {
-            let chart =
-                sagline_charts::subsidence_chart(&well_charts::subsidence_data(name, a), size);
-            exports::png_download(&meta, &format!("{name}-{file}"), &chart)
+    let a = r.outcome.as_ref().map(std::sync::Arc::clone).map_err(|e| {
+        AppError::Rejected(format!("Well {} could not be analysed: {e}", r.well.name))
+    })?;
+    // Drawing, rasterising and serialising stay off the async workers.
+    tokio::task::spawn_blocking(move || {
+        match well_view::well_file(&meta, &r, &a, &file).map(|f| (f.name, f.content_type, f.body)) {
+            Some((name, _, FileBody::Png(svg))) => Ok(exports::png_download(&meta, &name, &svg)),
+            Some((name, content_type, FileBody::Text(body))) => {
+                Ok(exports::download(content_type, &name, body))
+            }
+            None => Err(AppError::NotFound(format!("download '{file}'"))),
         }
-        "burial.png" => {
-            let chart = sagline_charts::burial_chart(&well_charts::burial_data(name, a), size);
-            exports::png_download(&meta, &format!("{name}-{file}"), &chart)
-        }
-        "heat-flow.png" => {
-            let chart =
-                sagline_charts::heat_flow_chart(&well_charts::heat_flow_data(name, a), size);
-            exports::png_download(&meta, &format!("{name}-{file}"), &chart)
-        }
-        "history.csv" => {
-            let out = analysis::well_out(a);
-            csv(
-                &format!("Backstripping history of well {name}"),
-                &analysis::CSV_HEADER,
-                analysis::csv_rows(&out),
-            )
-        }
-        "heat-flow.csv" => {
-            let rows = a
-                .interpretation
-                .as_ref()
-                .map(|i| {
-                    i.heat_flow_grid
-                        .iter()
-                        .map(|p| {
-                            vec![
-                                name.clone(),
-                                format!("{:.3}", p.age_ma),
-                                format!("{:.3}", p.value),
-                            ]
-                        })
-                        .collect()
-                })
-                .unwrap_or_default();
-            csv(
-                &format!(
-                    "Basal (mantle) heat flow of the fitted model, no radiogenic heat, well {name}"
-                ),
-                &["well", "age_ma", "heat_flow_mw_m2"],
-                rows,
-            )
-        }
-        "column.csv" => {
-            let rows = column_rows(&r.surfaces)
-                .into_iter()
-                .map(|c| {
-                    vec![
-                        name.clone(),
-                        c.horizon,
-                        c.depth_m.to_string(),
-                        c.age_ma.to_string(),
-                        c.unit_lithology.unwrap_or_default(),
-                        c.water_depth_min_m.to_string(),
-                        c.water_depth_max_m.to_string(),
-                        c.eroded_m.map(|x| x.to_string()).unwrap_or_default(),
-                        c.eroded_at_ma.map(|x| x.to_string()).unwrap_or_default(),
-                    ]
-                })
-                .collect();
-            csv(
-                &format!("Column of well {name}"),
-                &[
-                    "well",
-                    "horizon",
-                    "depth_m",
-                    "age_ma",
-                    "lithology",
-                    "water_depth_min_m",
-                    "water_depth_max_m",
-                    "eroded_m",
-                    "eroded_at_ma",
-                ],
-                rows,
-            )
-        }
-        "analysis.json" => {
-            let body = serde_json::json!({ "export": meta, "wells": [analysis::well_out(a)] });
-            exports::download(
-                "application/json",
-                &format!("{name}-analysis.json"),
-                serde_json::to_string_pretty(&body).unwrap_or_default(),
-            )
-        }
-        other => return Err(AppError::NotFound(format!("download '{other}'"))),
     })
+    .await
+    .map_err(|e| AppError::Internal(anyhow::anyhow!("download task failed: {e}")))?
 }

@@ -125,3 +125,28 @@ pub fn burial_data(well_name: &str, a: &WellAnalysis) -> BurialChartData {
             .collect(),
     }
 }
+
+/// The charts of the well page, as inline SVG (left out of the JSON twin).
+#[derive(Debug, Default)]
+pub struct WellCharts {
+    pub subsidence: String,
+    pub burial: String,
+    pub heat_flow: String,
+}
+
+/// Draw the well page's charts, off the async workers.
+pub async fn draw(
+    well_name: String,
+    a: std::sync::Arc<WellAnalysis>,
+) -> Result<WellCharts, super::ServiceError> {
+    tokio::task::spawn_blocking(move || {
+        let size = sagline_charts::ChartSize::default();
+        WellCharts {
+            subsidence: sagline_charts::subsidence_chart(&subsidence_data(&well_name, &a), size),
+            burial: sagline_charts::burial_chart(&burial_data(&well_name, &a), size),
+            heat_flow: sagline_charts::heat_flow_chart(&heat_flow_data(&well_name, &a), size),
+        }
+    })
+    .await
+    .map_err(|e| super::ServiceError::Internal(format!("the chart task failed: {e}")))
+}
