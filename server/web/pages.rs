@@ -1,24 +1,10 @@
-//! The page templates that have no feature module of their own here (sign-in) and
-//! the upload pages; each feature keeps its page struct beside its view.
+//! What every page shares: the caution and the formatting helpers templates call,
+//! and the sign-in page; each feature keeps its page struct beside its view.
 
-use super::upload::{PreviewView, UploadView};
 use askama::Template;
 
 /// The caution shown on every page and export.
 pub use crate::services::exports::CAUTION;
-
-#[derive(Template)]
-#[template(path = "upload.html")]
-pub struct UploadPage {
-    pub view: UploadView,
-    pub problems: Vec<String>,
-}
-
-#[derive(Template)]
-#[template(path = "upload_preview.html")]
-pub struct PreviewPage {
-    pub view: PreviewView,
-}
 
 /// The sign-in page; `next` is where to go afterwards (a local path).
 #[derive(Template)]

@@ -4,7 +4,6 @@
 //!
 //! Nothing is stored until every file validates; a valid upload is one transaction.
 
-use super::pages::{PreviewPage, UploadPage};
 use super::studies::{StudyInfo, load_study};
 use super::{ApiResult, AppError, AppState, HtmlError, PageResult};
 use crate::services::ServiceError;
@@ -27,6 +26,21 @@ use sagline_science::input::{
 };
 use serde::Serialize;
 use std::collections::HashMap;
+
+/// The upload form page.
+#[derive(Template)]
+#[template(path = "upload.html")]
+pub struct UploadPage {
+    pub view: UploadView,
+    pub problems: Vec<String>,
+}
+
+/// The preview of a held upload, before it is stored.
+#[derive(Template)]
+#[template(path = "upload_preview.html")]
+pub struct PreviewPage {
+    pub view: PreviewView,
+}
 
 pub fn routes() -> Router<AppState> {
     Router::new()
