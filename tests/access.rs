@@ -359,6 +359,11 @@ async fn every_route_refuses_an_anonymous_request() {
     assert_eq!(login.status, StatusCode::OK);
     assert!(login.body.contains("name=\"password\""));
     assert_eq!(nobody.get("/static/style.css").await.status, StatusCode::OK);
+    // The tab icon, which browsers ask for on their own, before and after signing in.
+    let icon = nobody.get("/favicon.ico").await;
+    assert_eq!(icon.status, StatusCode::OK);
+    assert!(icon.body.contains("<svg"), "{}", icon.body);
+    assert_eq!(app.get("/static/icon.svg").await.status, StatusCode::OK);
 }
 
 #[tokio::test]

@@ -78,6 +78,7 @@ const RULES: &[Rule] = &[
         Public,
         "loading the page's style and script",
     ),
+    rule(Reads, "/favicon.ico", Public, "loading the tab icon"),
     rule(Any, "/admin/**", AtLeast(Admin), "managing users"),
     rule(Any, "/api/admin/**", AtLeast(Admin), "managing users"),
     rule(Only("DELETE"), "/**", AtLeast(Admin), "deleting"),
@@ -170,6 +171,7 @@ mod tests {
         assert_eq!(needs("GET", "/login"), Public);
         assert_eq!(needs("POST", "/login"), Public);
         assert_eq!(needs("GET", "/static/style.css"), Public);
+        assert_eq!(needs("GET", "/favicon.ico"), Public);
         assert_eq!(needs("POST", "/static/style.css"), AtLeast(Interpreter));
         assert_eq!(needs("GET", "/"), AtLeast(Viewer));
         assert_eq!(needs("GET", "/loginx"), AtLeast(Viewer));

@@ -7,6 +7,7 @@ use axum::routing::get;
 
 const STYLE_CSS: &str = include_str!("../../static/style.css");
 const APP_JS: &str = include_str!("../../static/app.js");
+const ICON_SVG: &str = include_str!("../../static/icon.svg");
 
 pub fn routes() -> Router<super::AppState> {
     Router::new()
@@ -17,6 +18,15 @@ pub fn routes() -> Router<super::AppState> {
         .route(
             "/static/app.js",
             get(|| async { asset("text/javascript; charset=utf-8", APP_JS) }),
+        )
+        // The tab icon; browsers also ask for /favicon.ico on their own.
+        .route(
+            "/static/icon.svg",
+            get(|| async { asset("image/svg+xml", ICON_SVG) }),
+        )
+        .route(
+            "/favicon.ico",
+            get(|| async { asset("image/svg+xml", ICON_SVG) }),
         )
 }
 
