@@ -72,6 +72,26 @@ fn a_uniform_rift_does_not_look_depth_dependent() {
     );
 }
 
+/// The plate's states at `ages` after one event, at a resolution.
+fn plate_states(
+    l: &Lithosphere,
+    event: StretchingEvent,
+    ages: &[f64],
+    settings: &NumericalSettings,
+) -> Vec<crate::numerical_lithosphere::PlateState> {
+    run_plate(
+        l,
+        &CrustalHeatProduction::NONE,
+        &[event],
+        IsostasyConvention::McKenzie,
+        settings,
+        ages,
+        false,
+    )
+    .unwrap()
+    .states
+}
+
 #[test]
 fn the_fit_resolution_is_close_to_the_default() {
     let l = mckenzie();
@@ -82,19 +102,7 @@ fn the_fit_resolution_is_close_to_the_default() {
         mantle_factor: 2.6,
     };
     let ages: Vec<f64> = (0..=36).map(|i| 180.0 - 5.0 * i as f64).collect();
-    let go = |settings: &NumericalSettings| {
-        run_plate(
-            &l,
-            &CrustalHeatProduction::NONE,
-            &[event],
-            IsostasyConvention::McKenzie,
-            settings,
-            &ages,
-            false,
-        )
-        .unwrap()
-        .states
-    };
+    let go = |settings: &NumericalSettings| plate_states(&l, event, &ages, settings);
     let (fine, coarse) = (go(&NumericalSettings::default()), go(&FIT_RESOLUTION));
     for (f, c) in fine.iter().zip(&coarse) {
         assert!(
@@ -121,19 +129,7 @@ fn the_history_resolution_is_close_to_the_default() {
             mantle_factor: 3.5,
         },
     ] {
-        let go = |settings: &NumericalSettings| {
-            run_plate(
-                &l,
-                &CrustalHeatProduction::NONE,
-                &[event],
-                IsostasyConvention::McKenzie,
-                settings,
-                &ages,
-                false,
-            )
-            .unwrap()
-            .states
-        };
+        let go = |settings: &NumericalSettings| plate_states(&l, event, &ages, settings);
         let (fine, coarse) = (go(&NumericalSettings::default()), go(&HISTORY_RESOLUTION));
         for (f, c) in fine.iter().zip(&coarse) {
             assert!(
