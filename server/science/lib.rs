@@ -30,6 +30,7 @@ pub mod numerical_lithosphere;
 pub mod params;
 pub mod phases;
 pub mod search1d;
+pub mod thermal;
 pub mod tolerance;
 pub mod two_layer;
 pub mod uncertainty;
