@@ -152,6 +152,7 @@ fn analyze(c: &mut Criterion) {
         params: ModelParameters::default(),
         catalogue: catalogue.clone(),
         sea_level: SeaLevelCurve::default(),
+        thermal: sagline_science::analysis::thermal::ThermalInputs::default(),
     };
     group.bench_function("analysis::analyse_wells, 1,000 wells x 60 surfaces", |b| {
         b.iter(|| {

@@ -10,6 +10,7 @@
 
 use clap::{Args, ValueEnum};
 use sagline_science::analysis::contract::{ParametersOut, WellOut};
+use sagline_science::analysis::thermal::ThermalInputs;
 use sagline_science::analysis::{self, RiftTiming, StudyInputs};
 use sagline_science::input::{self, InputProblem, TopsOptions};
 use sagline_science::lithology::{Catalogue, Lithology};
@@ -251,6 +252,7 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
         params,
         catalogue,
         sea_level,
+        thermal: ThermalInputs::default(),
     };
     let timing = |well: &str| input::timings_of(&picks, well);
     let run = Run {
@@ -418,6 +420,8 @@ fn internal_failure(well: &str) -> WellOut {
         stretching: None,
         model_choice: None,
         fit_note: None,
+        thermal: None,
+        thermal_note: None,
     }
 }
 
@@ -564,6 +568,7 @@ mod tests {
             params: ModelParameters::default(),
             catalogue: Catalogue::published_defaults(),
             sea_level: SeaLevelCurve::default(),
+            thermal: ThermalInputs::default(),
         };
         for backstrip_only in [false, true] {
             let run = Run {

@@ -378,6 +378,7 @@ fn section(args: &SectionArgs) -> Result<(), BatchError> {
         params,
         catalogue,
         sea_level,
+        thermal: sagline_science::analysis::thermal::ThermalInputs::default(),
     };
     let mut histories = Vec::with_capacity(tops.wells.len());
     for (well, result) in

@@ -785,6 +785,7 @@ fn contract_report_bytes(tops: &str, pretty: bool) -> Vec<u8> {
         params: ModelParameters::default(),
         catalogue: catalogue.clone(),
         sea_level: SeaLevelCurve::default(),
+        thermal: analysis::thermal::ThermalInputs::default(),
     };
     let results = analysis::analyse_wells(&parsed.wells, &inputs, &|_| None, &|| {});
     let report = analysis::report(&parsed.wells, &results, &inputs);

@@ -33,6 +33,7 @@ fn inputs() -> StudyInputs {
         params: ModelParameters::default(),
         catalogue: Catalogue::published_defaults(),
         sea_level: input::parse_sea_level(SEA_LEVEL.as_bytes()).expect("sea level reads"),
+        thermal: sagline_science::analysis::thermal::ThermalInputs::default(),
     }
 }
 

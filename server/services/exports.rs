@@ -230,6 +230,7 @@ mod tests {
             params: ModelParameters::default(),
             catalogue: Catalogue::published_defaults(),
             sea_level: SeaLevelCurve::default(),
+            thermal: sagline_science::analysis::thermal::ThermalInputs::default(),
         };
         ExportMeta::new("Orrin <Shelf>", &inputs)
     }

@@ -306,6 +306,8 @@ pub fn inputs_of(
         params: study.parameters(),
         catalogue,
         sea_level,
+        // No study-level thermal settings are stored yet: the defaults, which say so.
+        thermal: sagline_science::analysis::thermal::ThermalInputs::default(),
     })
 }
 

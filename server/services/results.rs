@@ -195,6 +195,7 @@ mod tests {
             params: sagline_science::ModelParameters::default(),
             catalogue: sagline_science::lithology::Catalogue::published_defaults(),
             sea_level: sagline_science::SeaLevelCurve::default(),
+            thermal: sagline_science::analysis::thermal::ThermalInputs::default(),
         };
         Arc::new((inputs, Vec::new()))
     }

@@ -156,10 +156,13 @@ impl Job {
             }
         };
         let interpret = |timing: Option<&[(f64, f64)]>| {
+            let interpretation = analysis::interpret(&history, &self.inputs.params, timing)
+                .map_err(|e| e.to_string());
+            let thermal = analysis::thermal_of(&column, &history, &interpretation, &self.inputs);
             Arc::new(WellAnalysis {
                 history: history.clone(),
-                interpretation: analysis::interpret(&history, &self.inputs.params, timing)
-                    .map_err(|e| e.to_string()),
+                interpretation,
+                thermal,
             })
         };
         let mut interpretations = 0;

@@ -189,4 +189,10 @@ pub struct WellOut {
     /// Extension: why there is no stretching fit, when there is none.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub fit_note: Option<String>,
+    /// Extension: temperatures and maturity of every horizon through time.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub thermal: Option<super::thermal::ThermalOut>,
+    /// Extension: why there is no thermal history, when there is none.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub thermal_note: Option<String>,
 }

@@ -4,6 +4,7 @@
 
 pub mod contract;
 pub mod section;
+pub mod thermal;
 
 use crate::backstrip::{self, WellHistory};
 use crate::fit::SubsidenceObservation;
@@ -26,6 +27,8 @@ pub struct StudyInputs {
     pub params: ModelParameters,
     pub catalogue: Catalogue,
     pub sea_level: SeaLevelCurve,
+    /// Surface temperature, thermal properties, crust and maturity windows.
+    pub thermal: thermal::ThermalInputs,
 }
 
 /// Step of the regular heat-flow and model-curve grid (Myr).
@@ -66,6 +69,26 @@ pub struct WellAnalysis {
     pub history: WellHistory,
     /// The fit, or why there is none (too few ages, or a pick outside the well's ages).
     pub interpretation: Result<Interpretation, String>,
+    /// Temperatures and maturity under the interpretation, or why there are none.
+    pub thermal: Result<thermal::WellThermal, String>,
+}
+
+/// Why a well has no thermal history when it has no interpretation.
+pub const THERMAL_NEEDS_FIT: &str =
+    "no thermal history: it follows the stretching interpretation, and there is none";
+
+/// The thermal history of a well under its interpretation, or why there is none.
+pub fn thermal_of(
+    well: &WellColumn,
+    history: &WellHistory,
+    interpretation: &Result<Interpretation, String>,
+    inputs: &StudyInputs,
+) -> Result<thermal::WellThermal, String> {
+    match interpretation {
+        Ok(i) => thermal::well_thermal(well, history, i, &inputs.params, &inputs.thermal)
+            .map_err(|e| format!("no thermal history: {e}")),
+        Err(_) => Err(THERMAL_NEEDS_FIT.into()),
+    }
 }
 
 /// The tectonic-subsidence series the fits use, oldest first.
@@ -185,9 +208,11 @@ pub fn analyse_well(
 ) -> Result<WellAnalysis, ScienceError> {
     let history = backstrip::backstrip(well, &inputs.catalogue, &inputs.params, &inputs.sea_level)?;
     let interpretation = interpret(&history, &inputs.params, timing).map_err(|e| e.to_string());
+    let thermal = thermal_of(well, &history, &interpretation, inputs);
     Ok(WellAnalysis {
         history,
         interpretation,
+        thermal,
     })
 }
 
@@ -226,6 +251,7 @@ pub fn backstrip_wells(
                 .map(|history| WellAnalysis {
                     history,
                     interpretation: Err(FITS_NOT_REQUESTED.into()),
+                    thermal: Err(FITS_NOT_REQUESTED.into()),
                 });
             progress();
             r
@@ -311,6 +337,11 @@ pub fn well_out(a: &WellAnalysis) -> WellOut {
         stretching: a.interpretation.as_ref().ok().and_then(stretching_out),
         model_choice: a.interpretation.as_ref().ok().map(model_choice_out),
         fit_note: fit_note(a),
+        thermal: a.thermal.as_ref().ok().map(|t| {
+            let ages: Vec<f64> = h.steps.iter().map(|s| s.age_ma).collect();
+            thermal::thermal_out(t, &ages)
+        }),
+        thermal_note: a.thermal.as_ref().err().cloned(),
     }
 }
 
@@ -531,6 +562,8 @@ pub fn failed_well_out(name: &str, error: &ScienceError) -> WellOut {
         stretching: None,
         model_choice: None,
         fit_note: None,
+        thermal: None,
+        thermal_note: None,
     }
 }
 
