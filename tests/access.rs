@@ -1128,7 +1128,7 @@ async fn the_server_prints_the_first_admin_password_once_and_never_logs_password
         petrel.sign_in("petrel", &member).await.status,
         StatusCode::SEE_OTHER
     );
-    let chosen = "a chosen password for gannet";
+    let chosen = "a chosen phrase, sea-worn and long";
     let added = admin
         .post_json(
             "/api/admin/users",
@@ -1219,18 +1219,18 @@ async fn the_command_line_adds_an_account() {
             "admin",
             "--password-stdin",
         ],
-        "fulmar's own password\n",
+        "gannet-tide-over-the-ness\n",
     );
     assert!(
         chosen.status.success(),
         "{}",
         String::from_utf8_lossy(&chosen.stderr)
     );
-    assert!(!String::from_utf8_lossy(&chosen.stdout).contains("fulmar's own password"));
+    assert!(!String::from_utf8_lossy(&chosen.stdout).contains("gannet-tide-over-the-ness"));
     let mut fulmar = app.anonymous();
     assert_eq!(
         fulmar
-            .sign_in("fulmar", "fulmar's own password")
+            .sign_in("fulmar", "gannet-tide-over-the-ness")
             .await
             .status,
         StatusCode::SEE_OTHER

@@ -153,14 +153,14 @@ pub async fn create_user(
 ) -> Result<CreatedUser, ServiceError> {
     let name = check_name(name)?;
     if let Some(p) = password {
-        password::check_chosen(p).map_err(ServiceError::Invalid)?;
+        password::check_chosen(p, name).map_err(ServiceError::Invalid)?;
     }
     if store::users::find_by_name(db, name).await?.is_some() {
         return Err(ServiceError::Conflict(format!(
             "An account named '{name}' already exists; choose another name."
         )));
     }
-    let generated_password = password.is_none().then(password::generate);
+    let generated_password = password.is_none().then(|| password::generate_for(name));
     let chosen = password
         .map(str::to_string)
         .or_else(|| generated_password.clone())
@@ -262,7 +262,7 @@ pub async fn reset_password(
     let user = store::users::get(db, user_id)
         .await?
         .ok_or_else(|| ServiceError::NotFound(format!("user {user_id}")))?;
-    let new_password = password::generate();
+    let new_password = password::generate_for(&user.name);
     let hash = hash_password(new_password.clone()).await?;
     let mut tx = store::write_transaction(db).await?;
     load_user(&mut tx, user_id).await?;
