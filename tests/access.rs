@@ -53,6 +53,8 @@ fn reads(study: i64, well: i64) -> Vec<String> {
         "/admin/users".into(),
         "/api/admin/users".into(),
         "/api/session".into(),
+        "/account".into(),
+        "/api/account".into(),
     ]
 }
 
@@ -86,7 +88,7 @@ fn change(method: Method, path: String, body: Body, least: Role) -> Change {
 fn changes(study: i64, well: i64) -> Vec<Change> {
     use Body::{Empty, Form, Json};
     use Method as M;
-    use Role::{Admin, Interpreter};
+    use Role::{Admin, Interpreter, Viewer};
     vec![
         change(
             M::POST,
@@ -252,6 +254,14 @@ fn changes(study: i64, well: i64) -> Vec<Change> {
             format!("/api/admin/users/{NO_USER}/unlock"),
             Empty,
             Admin,
+        ),
+        // Everyone may change their own password; these bodies give no new one.
+        change(M::POST, "/account/password".into(), Form(&[]), Viewer),
+        change(
+            M::POST,
+            "/api/account/password".into(),
+            Json(json!({})),
+            Viewer,
         ),
     ]
 }

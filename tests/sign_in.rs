@@ -1,8 +1,8 @@
 //! Signing in and passwords: the throttle counts tries per (user name, client address)
 //! atomically, so forty guesses at once get five checks; a stranger's guesses from
 //! another address never make the real user wait; the wait grows from 30 seconds,
-//! doubling up to 15 minutes; an admin clears it; and passwords meet the rules wherever
-//! they are set.
+//! doubling up to 15 minutes; an admin clears it; passwords meet the rules wherever
+//! they are set; and people change their own password, ending their other sessions.
 //!
 //! The policy under test (PRODUCT brief and issue 11): five tries in a row, then a wait
 //! of 30 s that doubles with each further wrong try, at most 15 minutes; passwords of at
@@ -359,4 +359,111 @@ async fn passwords_that_break_the_rules_are_refused_with_the_reason_and_nothing_
         .await;
     let generated = added.json()["password"].as_str().unwrap().to_string();
     assert_eq!(auth::password::check_chosen(&generated, "petrel"), Ok(()));
+}
+
+#[tokio::test]
+async fn a_person_changes_their_own_password_and_the_old_one_stops_working() {
+    let app = TestApp::empty().await;
+    let shearwater = app.sign_in_as(Role::Viewer).await;
+    let name = "member-viewer";
+    let mut elsewhere = app.anonymous();
+    assert_eq!(
+        elsewhere.sign_in(name, MEMBER_PASSWORD).await.status,
+        StatusCode::SEE_OTHER
+    );
+    let new_password = "kelp-lantern-drifts-east";
+
+    let page = shearwater.get("/account").await;
+    assert_eq!(page.status, StatusCode::OK);
+    assert!(page.body.contains("action=\"/account/password\""));
+    assert!(page.body.contains("name=\"csrf_token\""));
+
+    let change = |current: &'static str, new: &'static str, repeat: &'static str| {
+        let agent = shearwater.clone();
+        async move {
+            agent
+                .post_form(
+                    "/account/password",
+                    &[
+                        ("current_password", current),
+                        ("new_password", new),
+                        ("repeat_password", repeat),
+                    ],
+                )
+                .await
+        }
+    };
+    // Refusals, each with its reason, and the password unchanged.
+    let wrong = change("not my password at all", new_password, new_password).await;
+    assert_eq!(wrong.status, StatusCode::UNPROCESSABLE_ENTITY);
+    assert!(
+        wrong.body.contains("The current password is wrong"),
+        "{}",
+        wrong.body
+    );
+    let differ = change(MEMBER_PASSWORD, new_password, "kelp-lantern-drifts-west").await;
+    assert_eq!(differ.status, StatusCode::UNPROCESSABLE_ENTITY);
+    assert!(differ.body.contains("differ"), "{}", differ.body);
+    let weak = change(MEMBER_PASSWORD, "member-viewer-2", "member-viewer-2").await;
+    assert_eq!(weak.status, StatusCode::UNPROCESSABLE_ENTITY);
+    assert!(weak.body.contains("user name"), "{}", weak.body);
+    let forged = shearwater
+        .without_csrf()
+        .post_form(
+            "/account/password",
+            &[
+                ("current_password", MEMBER_PASSWORD),
+                ("new_password", new_password),
+                ("repeat_password", new_password),
+            ],
+        )
+        .await;
+    assert_eq!(forged.status, StatusCode::FORBIDDEN);
+    assert_eq!(
+        try_sign_in(&app.anonymous(), name, MEMBER_PASSWORD).await.0,
+        StatusCode::OK
+    );
+
+    // The change: this session stays, the other one ends.
+    let done = change(MEMBER_PASSWORD, new_password, new_password).await;
+    assert_eq!(done.status, StatusCode::OK, "{}", done.body);
+    assert!(
+        done.body
+            .contains("Your password is changed. 2 other session(s)"),
+        "{}",
+        done.body
+    );
+    assert_eq!(shearwater.get("/api/session").await.status, StatusCode::OK);
+    assert_eq!(
+        elsewhere.get("/api/session").await.status,
+        StatusCode::UNAUTHORIZED
+    );
+    let (old, _) = try_sign_in(&app.anonymous(), name, MEMBER_PASSWORD).await;
+    assert_eq!(old, StatusCode::UNAUTHORIZED);
+    let (new, _) = try_sign_in(&app.anonymous(), name, new_password).await;
+    assert_eq!(new, StatusCode::OK);
+
+    // By API too; and the record names the change, never the password.
+    let by_api = shearwater
+        .post_json(
+            "/api/account/password",
+            &json!({ "current_password": new_password, "new_password": "tidal-quartz-heron-66" }),
+        )
+        .await;
+    assert_eq!(by_api.status, StatusCode::OK, "{}", by_api.body);
+    assert_eq!(by_api.json()["other_sessions_ended"], 1);
+    let changes = app.get_json("/api/admin/users").await["changes"].clone();
+    let own: Vec<_> = changes
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|c| c["action"] == "change own password")
+        .collect();
+    assert_eq!(own.len(), 2, "{changes}");
+    assert!(
+        own.iter()
+            .all(|c| c["actor"] == name && c["subject"] == name)
+    );
+    let text = changes.to_string();
+    assert!(!text.contains(new_password) && !text.contains("tidal-quartz-heron-66"));
 }

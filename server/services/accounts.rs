@@ -1,6 +1,7 @@
 //! Accounts and sessions: creating users and changing them (each change with its
 //! activity row, outside any study), signing in with throttling (per user name and
-//! client address, `auth::SIGN_IN_THROTTLE`), and resolving the session of a request.
+//! client address, `auth::SIGN_IN_THROTTLE`), changing one's own password, and
+//! resolving the session of a request.
 //!
 //! Passwords are hashed off the async runtime and never stored, logged or recorded;
 //! a generated password is returned once to the caller that shows it.
@@ -538,6 +539,60 @@ pub async fn clear_sign_in_waits(
     tx.commit().await?;
     tracing::info!(user = %user.name, actor, cleared, "sign-in waits cleared");
     Ok((user, cleared))
+}
+
+/// A signed-in person changes their own password: the current one is checked (a try
+/// the throttle counts, like a sign-in), the new one must meet the rules, and every
+/// other session of the account ends. Returns how many sessions ended.
+pub async fn change_own_password(
+    db: &SqlitePool,
+    user: &SignedIn,
+    current: &str,
+    new: &str,
+    client: &str,
+    now: i64,
+) -> Result<u64, ServiceError> {
+    password::check_chosen(new, &user.name).map_err(ServiceError::Invalid)?;
+    if new == current {
+        return Err(ServiceError::Invalid(
+            "The new password is the same as the current one; choose another.".into(),
+        ));
+    }
+    let wait_secs = match count_try(db, &user.name, client, now).await? {
+        Try::Wait { wait_secs } => {
+            return Err(ServiceError::TooManyTries(wait_message(wait_secs)));
+        }
+        Try::Check { wait_secs } => wait_secs,
+    };
+    let account = store::users::credentials(db, &user.name).await?;
+    if account.as_ref().map(|a| a.id) != Some(user.user_id)
+        || !password_matches(account.as_ref(), current).await
+    {
+        tracing::warn!(user = %user.name, client, "password change refused: wrong current password");
+        return Err(ServiceError::Invalid(format!(
+            "The current password is wrong; nothing was changed.{}",
+            next_try_words(wait_secs)
+        )));
+    }
+    store::throttle::clear(db, &user.name, client).await?;
+    let hash = hash_password(new.to_string()).await?;
+    let mut tx = store::write_transaction(db).await?;
+    store::users::set_password_hash(&mut *tx, user.user_id, &hash).await?;
+    let ended =
+        store::sessions::delete_for_user_except(&mut *tx, user.user_id, &user.session_digest)
+            .await?;
+    record(
+        &mut tx,
+        &user.name,
+        "change own password",
+        &user.name,
+        None,
+        Some(format!("new password set; {ended} other session(s) ended")),
+    )
+    .await?;
+    tx.commit().await?;
+    tracing::info!(user = %user.name, sessions_ended = ended, "password changed");
+    Ok(ended)
 }
 
 /// The account a session cookie belongs to, if the session is still open at `now`.
