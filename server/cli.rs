@@ -84,6 +84,8 @@ pub struct UserAddArgs {
     #[arg(long, default_value = "sagline.db")]
     pub db: PathBuf,
     /// Read the password from the first line of standard input instead of generating one.
+    /// It needs at least 12 characters (5 of them different), may not be or contain the
+    /// user name, and may not be a common password or one built on it.
     #[arg(long)]
     pub password_stdin: bool,
 }

@@ -531,3 +531,141 @@ mod picks {
         );
     }
 }
+
+mod sessions {
+    use super::*;
+    use store::sessions::NewSession;
+
+    #[tokio::test]
+    async fn ending_a_users_other_sessions_keeps_the_one_named_and_other_users() {
+        let (_dir, pool) = fresh().await;
+        let ana = store::users::insert(&pool, "ana", Role::Admin, "h")
+            .await
+            .unwrap();
+        let ben = store::users::insert(&pool, "ben", Role::Viewer, "h")
+            .await
+            .unwrap();
+        for (digest, user_id) in [("a1", ana), ("a2", ana), ("a3", ana), ("b1", ben)] {
+            let session = NewSession {
+                token_hash: digest,
+                user_id,
+                csrf_token: "c",
+                now: 100,
+                expires_at: 1_000,
+            };
+            store::sessions::insert(&pool, session).await.unwrap();
+        }
+        let ended = store::sessions::delete_for_user_except(&pool, ana, "a2")
+            .await
+            .unwrap();
+        assert_eq!(ended, 2);
+        assert!(store::sessions::find(&pool, "a2").await.unwrap().is_some());
+        assert!(store::sessions::find(&pool, "a1").await.unwrap().is_none());
+        assert_eq!(
+            store::sessions::count_for_user(&pool, ben).await.unwrap(),
+            1
+        );
+    }
+}
+
+mod throttle {
+    use super::*;
+    use store::throttle;
+
+    #[tokio::test]
+    async fn tries_count_per_name_and_address_and_none_while_waiting() {
+        let (_dir, pool) = fresh().await;
+        let ip = "192.0.2.1";
+        assert_eq!(
+            throttle::count_try(&pool, "ana", ip, 100).await.unwrap(),
+            Some(1)
+        );
+        // The name in any letter case is the same record; another address is another.
+        assert_eq!(
+            throttle::count_try(&pool, "ANA", ip, 101).await.unwrap(),
+            Some(2)
+        );
+        assert_eq!(
+            throttle::count_try(&pool, "ana", "192.0.2.2", 101)
+                .await
+                .unwrap(),
+            Some(1)
+        );
+        throttle::set_wait_until(&pool, "ana", ip, 200)
+            .await
+            .unwrap();
+        assert_eq!(
+            throttle::wait_until(&pool, "ana", ip).await.unwrap(),
+            Some(200)
+        );
+        // While the wait lasts nothing is counted; from its end on, tries count again.
+        assert_eq!(
+            throttle::count_try(&pool, "ana", ip, 199).await.unwrap(),
+            None
+        );
+        assert_eq!(
+            throttle::count_try(&pool, "ana", ip, 200).await.unwrap(),
+            Some(3)
+        );
+        assert_eq!(
+            throttle::wait_until(&pool, "nobody", ip).await.unwrap(),
+            None
+        );
+
+        assert_eq!(throttle::clear(&pool, "Ana", ip).await.unwrap(), 1);
+        assert_eq!(throttle::wait_until(&pool, "ana", ip).await.unwrap(), None);
+        assert_eq!(
+            throttle::wait_until(&pool, "ana", "192.0.2.2")
+                .await
+                .unwrap(),
+            Some(0)
+        );
+    }
+
+    #[tokio::test]
+    async fn records_are_listed_for_accounts_cleared_by_name_and_forgotten_when_old() {
+        let (_dir, pool) = fresh().await;
+        let ana = store::users::insert(&pool, "Ana", Role::Viewer, "h")
+            .await
+            .unwrap();
+        throttle::count_try(&pool, "ana", "192.0.2.1", 100)
+            .await
+            .unwrap();
+        throttle::count_try(&pool, "ana", "192.0.2.2", 500)
+            .await
+            .unwrap();
+        throttle::count_try(&pool, "ghost", "192.0.2.1", 100)
+            .await
+            .unwrap();
+        throttle::set_wait_until(&pool, "ana", "192.0.2.2", 900)
+            .await
+            .unwrap();
+        // Only names that are accounts are listed, under the account's own spelling.
+        let listed = throttle::for_accounts(&pool).await.unwrap();
+        let rows: Vec<(i64, &str, &str, i64, i64, i64)> = listed
+            .iter()
+            .map(|r| {
+                let (name, client) = (r.name.as_str(), r.client.as_str());
+                (
+                    r.user_id,
+                    name,
+                    client,
+                    r.tries,
+                    r.wait_until,
+                    r.last_try_at,
+                )
+            })
+            .collect();
+        assert_eq!(
+            rows,
+            [
+                (ana, "Ana", "192.0.2.1", 1, 0, 100),
+                (ana, "Ana", "192.0.2.2", 1, 900, 500)
+            ]
+        );
+        // Old records whose wait is over are forgotten; a waiting one is kept.
+        assert_eq!(throttle::forget_older(&pool, 600, 600).await.unwrap(), 2);
+        assert_eq!(throttle::clear_name(&pool, "ANA").await.unwrap(), 1);
+        assert!(throttle::for_accounts(&pool).await.unwrap().is_empty());
+    }
+}

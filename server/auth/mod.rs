@@ -77,10 +77,44 @@ pub const SESSION_ABSOLUTE_SECS: i64 = 7 * 24 * 60 * 60;
 /// turn every request into a database write.
 pub const SESSION_TOUCH_SECS: i64 = 60;
 
-/// Failed sign-ins allowed per user name, and per client address, within the window.
-pub const THROTTLE_MAX_FAILURES: i64 = 5;
-/// The sliding window of the sign-in throttle (seconds).
-pub const THROTTLE_WINDOW_SECS: i64 = 15 * 60;
+/// The sign-in throttle, kept per (user name, client address): so a stranger's guesses
+/// from elsewhere never make the real user wait. Each try is counted before its password
+/// is checked (atomically, in one statement), and a successful sign-in from that address
+/// clears the count; so however many guesses arrive at once, at most `free_tries` are
+/// checked before the first wait.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct ThrottlePolicy {
+    /// Tries in a row without a wait.
+    pub free_tries: i64,
+    /// The wait after the last free try (seconds); it doubles with each further try.
+    pub first_wait_secs: i64,
+    /// The longest wait (seconds).
+    pub max_wait_secs: i64,
+    /// A record with no try for this long is forgotten (seconds).
+    pub forget_after_secs: i64,
+}
+
+impl ThrottlePolicy {
+    /// How long the client waits after its `tries`-th try in a row without success.
+    pub fn wait_after(&self, tries: i64) -> i64 {
+        if tries < self.free_tries {
+            return 0;
+        }
+        let doublings = u32::try_from(tries - self.free_tries)
+            .unwrap_or(u32::MAX)
+            .min(30);
+        (self.first_wait_secs << doublings).min(self.max_wait_secs)
+    }
+}
+
+/// Five tries, then 30 s, 60 s, 120 s … up to 15 minutes between tries; forgotten after
+/// a day without a try.
+pub const SIGN_IN_THROTTLE: ThrottlePolicy = ThrottlePolicy {
+    free_tries: 5,
+    first_wait_secs: 30,
+    max_wait_secs: 15 * 60,
+    forget_after_secs: 24 * 60 * 60,
+};
 
 /// Seconds since the Unix epoch, the clock of sessions and throttling.
 pub fn unix_now() -> i64 {
@@ -102,5 +136,14 @@ mod tests {
         }
         assert_eq!(" Admin ".parse::<Role>(), Ok(Role::Admin));
         assert!("owner".parse::<Role>().unwrap_err().contains("not a role"));
+    }
+
+    #[test]
+    fn the_sign_in_wait_starts_after_the_free_tries_and_doubles_up_to_the_cap() {
+        let p = SIGN_IN_THROTTLE;
+        // Five free tries; the fifth wrong one starts a 30 s wait.
+        let waits: Vec<i64> = (1..=12).map(|t| p.wait_after(t)).collect();
+        assert_eq!(waits, [0, 0, 0, 0, 30, 60, 120, 240, 480, 900, 900, 900]);
+        assert_eq!(p.wait_after(i64::MAX), 900);
     }
 }

@@ -90,6 +90,18 @@ const RULES: &[Rule] = &[
         AtLeast(Viewer),
         "signing out",
     ),
+    rule(
+        Changes,
+        "/account/password",
+        AtLeast(Viewer),
+        "changing your own password",
+    ),
+    rule(
+        Changes,
+        "/api/account/password",
+        AtLeast(Viewer),
+        "changing your own password",
+    ),
     rule(Changes, "/studies", AtLeast(Admin), "creating a study"),
     rule(Changes, "/api/studies", AtLeast(Admin), "creating a study"),
     rule(
@@ -211,6 +223,9 @@ mod tests {
         assert_eq!(needs("HEAD", "/studies"), AtLeast(Viewer));
         assert_eq!(needs("POST", "/logout"), AtLeast(Viewer));
         assert_eq!(needs("POST", "/logout-everywhere"), AtLeast(Viewer));
+        assert_eq!(needs("POST", "/account/password"), AtLeast(Viewer));
+        assert_eq!(needs("POST", "/api/account/password"), AtLeast(Viewer));
+        assert_eq!(needs("POST", "/admin/users/3/unlock"), AtLeast(Admin));
     }
 
     #[test]

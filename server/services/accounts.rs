@@ -1,6 +1,7 @@
 //! Accounts and sessions: creating users and changing them (each change with its
-//! activity row, outside any study), signing in with throttling, and resolving the
-//! session of a request.
+//! activity row, outside any study), signing in with throttling (per user name and
+//! client address, `auth::SIGN_IN_THROTTLE`), changing one's own password, and
+//! resolving the session of a request.
 //!
 //! Passwords are hashed off the async runtime and never stored, logged or recorded;
 //! a generated password is returned once to the caller that shows it.
@@ -11,6 +12,7 @@ use crate::store;
 use crate::store::activity::Change;
 use crate::store::sessions::NewSession;
 use crate::store::users::UserRow;
+use serde::Serialize;
 use sqlx::{SqliteConnection, SqlitePool};
 
 /// The name of the account made on first start.
@@ -49,16 +51,18 @@ pub struct NewLogin {
     pub user: SignedIn,
 }
 
-/// Why a sign-in was refused, in words for the person signing in.
+/// Why a sign-in was refused, in words for the person signing in. None of them says
+/// whether the name is an account's (but `Disabled`, which needs the right password).
 #[derive(Debug, thiserror::Error)]
 pub enum LoginError {
-    #[error("Wrong user name or password.")]
-    WrongCredentials,
+    /// `wait_secs`: how long this client waits before its next try of this name (0: none).
+    #[error("Wrong user name or password.{}", next_try_words(*.wait_secs))]
+    WrongCredentials { wait_secs: i64 },
     #[error("This account is disabled; ask an admin to enable it.")]
     Disabled,
-    /// Too many failures for this name or from this address within the window.
-    #[error("{}", throttle_message(*.retry_at, *.now))]
-    Throttled { retry_at: i64, now: i64 },
+    /// Too many tries in a row of this name from this address.
+    #[error("{}", wait_message(*.wait_secs))]
+    Throttled { wait_secs: i64 },
     #[error(transparent)]
     Database(#[from] sqlx::Error),
 }
@@ -67,19 +71,38 @@ impl LoginError {
     /// Seconds until a throttled sign-in may be tried again.
     pub fn retry_after_secs(&self) -> Option<i64> {
         match self {
-            LoginError::Throttled { retry_at, now } => Some((retry_at - now).max(1)),
+            LoginError::Throttled { wait_secs } => Some(*wait_secs),
             _ => None,
         }
     }
 }
 
-fn throttle_message(retry_at: i64, now: i64) -> String {
-    let minutes = ((retry_at - now).max(1) + 59) / 60;
-    let of_day = retry_at.rem_euclid(86_400);
+/// `30 seconds`, `900 seconds (15 minutes)`.
+fn seconds_words(secs: i64) -> String {
+    if secs >= 120 {
+        format!("{secs} seconds ({} minutes)", (secs + 59) / 60)
+    } else if secs == 1 {
+        "1 second".into()
+    } else {
+        format!("{secs} seconds")
+    }
+}
+
+fn next_try_words(wait_secs: i64) -> String {
+    if wait_secs > 0 {
+        format!(
+            " Too many tries in a row: wait {} before the next one.",
+            seconds_words(wait_secs)
+        )
+    } else {
+        String::new()
+    }
+}
+
+fn wait_message(wait_secs: i64) -> String {
     format!(
-        "Too many failed sign-ins for this user name or from this address. Try again in {minutes} minute(s), after {:02}:{:02} UTC.",
-        of_day / 3600,
-        of_day % 3600 / 60
+        "Too many failed sign-ins in a row with this user name from this address. Wait {}, then try again (or ask an admin to clear the wait).",
+        seconds_words(wait_secs)
     )
 }
 
@@ -153,14 +176,14 @@ pub async fn create_user(
 ) -> Result<CreatedUser, ServiceError> {
     let name = check_name(name)?;
     if let Some(p) = password {
-        password::check_chosen(p).map_err(ServiceError::Invalid)?;
+        password::check_chosen(p, name).map_err(ServiceError::Invalid)?;
     }
     if store::users::find_by_name(db, name).await?.is_some() {
         return Err(ServiceError::Conflict(format!(
             "An account named '{name}' already exists; choose another name."
         )));
     }
-    let generated_password = password.is_none().then(password::generate);
+    let generated_password = password.is_none().then(|| password::generate_for(name));
     let chosen = password
         .map(str::to_string)
         .or_else(|| generated_password.clone())
@@ -262,7 +285,7 @@ pub async fn reset_password(
     let user = store::users::get(db, user_id)
         .await?
         .ok_or_else(|| ServiceError::NotFound(format!("user {user_id}")))?;
-    let new_password = password::generate();
+    let new_password = password::generate_for(&user.name);
     let hash = hash_password(new_password.clone()).await?;
     let mut tx = store::write_transaction(db).await?;
     load_user(&mut tx, user_id).await?;
@@ -344,26 +367,69 @@ pub async fn list_users(db: &SqlitePool) -> Result<Vec<UserRow>, ServiceError> {
     Ok(store::users::list(db).await?)
 }
 
-/// When this name or this client may try again, if either is throttled now.
-async fn throttled_until(
+/// One try of a name from a client, as the throttle counted it.
+enum Try {
+    /// Check the password; `wait_secs` is the wait before the next try if this one fails.
+    Check { wait_secs: i64 },
+    /// Do not check: the client waits this long first.
+    Wait { wait_secs: i64 },
+}
+
+/// Count a try of `name` from `client` before its password is checked, in one writing
+/// transaction: however many tries arrive at once, each is counted in turn, and those
+/// past the free ones find the wait already set and are not checked.
+async fn count_try(
     db: &SqlitePool,
     name: &str,
     client: &str,
     now: i64,
-) -> Result<Option<i64>, sqlx::Error> {
-    let since = now - auth::THROTTLE_WINDOW_SECS;
-    let n = auth::THROTTLE_MAX_FAILURES;
-    // Sliding window: locked until the n-th latest failure leaves the window.
-    let by_name = store::sessions::nth_failure_for_name(db, name, since, n).await?;
-    let by_client = store::sessions::nth_failure_for_client(db, client, since, n).await?;
-    Ok(by_name
-        .max(by_client)
-        .map(|at| at + auth::THROTTLE_WINDOW_SECS)
-        .filter(|&until| until > now))
+) -> Result<Try, sqlx::Error> {
+    let policy = auth::SIGN_IN_THROTTLE;
+    let mut tx = store::write_transaction(db).await?;
+    store::throttle::forget_older(&mut *tx, now - policy.forget_after_secs, now).await?;
+    let outcome = match store::throttle::count_try(&mut *tx, name, client, now).await? {
+        Some(tries) => {
+            let wait_secs = policy.wait_after(tries);
+            if wait_secs > 0 {
+                store::throttle::set_wait_until(&mut *tx, name, client, now + wait_secs).await?;
+            }
+            Try::Check { wait_secs }
+        }
+        None => {
+            let until = store::throttle::wait_until(&mut *tx, name, client)
+                .await?
+                .unwrap_or(now);
+            Try::Wait {
+                wait_secs: (until - now).max(1),
+            }
+        }
+    };
+    tx.commit().await?;
+    Ok(outcome)
 }
 
-/// Sign in: refuse while throttled, check the password, and open a session.
-/// `client` is the address the request came from.
+/// Whether `password` is the one of the account `name` (false for no such account,
+/// after as long as a check takes).
+async fn password_matches(account: Option<&store::users::Credentials>, password: &str) -> bool {
+    let stored = account.map(|a| a.password_hash.clone());
+    let typed = password
+        .chars()
+        .take(password::MAX_LEN + 1)
+        .collect::<String>();
+    tokio::task::spawn_blocking(move || match stored {
+        Some(hash) => password::verify(&typed, &hash),
+        None => {
+            password::verify_nothing(&typed);
+            false
+        }
+    })
+    .await
+    .unwrap_or(false)
+}
+
+/// Sign in: count the try (refused while this client waits for this name), check the
+/// password, clear the count and open a session. `client` is the address the request
+/// came from.
 pub async fn log_in(
     db: &SqlitePool,
     name: &str,
@@ -372,39 +438,27 @@ pub async fn log_in(
     now: i64,
 ) -> Result<NewLogin, LoginError> {
     let name: String = name.trim().chars().take(MAX_NAME_CHARS * 2).collect();
-    store::sessions::prune_failures(db, now - auth::THROTTLE_WINDOW_SECS).await?;
-    if let Some(retry_at) = throttled_until(db, &name, client, now).await? {
-        tracing::warn!(user = %name, client, "sign-in refused: throttled");
-        return Err(LoginError::Throttled { retry_at, now });
-    }
-    let account = store::users::credentials(db, &name).await?;
-    let stored = account.as_ref().map(|a| a.password_hash.clone());
-    let typed = password
-        .chars()
-        .take(password::MAX_LEN + 1)
-        .collect::<String>();
-    let matches = tokio::task::spawn_blocking(move || match stored {
-        Some(hash) => password::verify(&typed, &hash),
-        None => {
-            password::verify_nothing(&typed);
-            false
+    let wait_secs = match count_try(db, &name, client, now).await? {
+        Try::Wait { wait_secs } => {
+            tracing::warn!(user = %name, client, wait_secs, "sign-in refused: throttled");
+            return Err(LoginError::Throttled { wait_secs });
         }
-    })
-    .await
-    .unwrap_or(false);
+        Try::Check { wait_secs } => wait_secs,
+    };
+    let account = store::users::credentials(db, &name).await?;
+    let matches = password_matches(account.as_ref(), password).await;
     let account = match account {
         Some(a) if matches => a,
         _ => {
-            store::sessions::record_failure(db, &name, client, now).await?;
             tracing::warn!(user = %name, client, "sign-in failed");
-            return Err(LoginError::WrongCredentials);
+            return Err(LoginError::WrongCredentials { wait_secs });
         }
     };
+    store::throttle::clear(db, &name, client).await?;
     if account.disabled {
         tracing::warn!(user = %account.name, client, "sign-in refused: account disabled");
         return Err(LoginError::Disabled);
     }
-    store::sessions::clear_failures(db, &name).await?;
     store::sessions::delete_expired(db, now, now - auth::SESSION_IDLE_SECS).await?;
     let session_token = token::new_token();
     let csrf_token = token::new_token();
@@ -431,6 +485,114 @@ pub async fn log_in(
             session_digest,
         },
     })
+}
+
+/// A client that waits (or has tried and failed) before signing in as an account, for
+/// the users page.
+#[derive(Debug, Clone, Serialize)]
+pub struct SignInWait {
+    pub user_id: i64,
+    pub name: String,
+    /// The address the tries came from.
+    pub client: String,
+    /// Tries in a row without success.
+    pub tries: i64,
+    /// Seconds this client still waits before its next try (0: none).
+    pub wait_secs: i64,
+}
+
+/// Every throttle record of an account, with the wait left at `now`.
+pub async fn sign_in_waits(db: &SqlitePool, now: i64) -> Result<Vec<SignInWait>, ServiceError> {
+    Ok(store::throttle::for_accounts(db)
+        .await?
+        .into_iter()
+        .filter(|r| r.last_try_at >= now - auth::SIGN_IN_THROTTLE.forget_after_secs)
+        .map(|r| SignInWait {
+            user_id: r.user_id,
+            name: r.name,
+            client: r.client,
+            tries: r.tries,
+            wait_secs: (r.wait_until - now).max(0),
+        })
+        .collect())
+}
+
+/// Clear the sign-in waits of an account from every address (an admin's unlock);
+/// returns the account and how many addresses had a record.
+pub async fn clear_sign_in_waits(
+    db: &SqlitePool,
+    user_id: i64,
+    actor: &str,
+) -> Result<(UserRow, u64), ServiceError> {
+    let mut tx = store::write_transaction(db).await?;
+    let user = load_user(&mut tx, user_id).await?;
+    let cleared = store::throttle::clear_name(&mut *tx, &user.name).await?;
+    record(
+        &mut tx,
+        actor,
+        "clear sign-in waits",
+        &user.name,
+        None,
+        Some(format!("{cleared} address(es) cleared")),
+    )
+    .await?;
+    tx.commit().await?;
+    tracing::info!(user = %user.name, actor, cleared, "sign-in waits cleared");
+    Ok((user, cleared))
+}
+
+/// A signed-in person changes their own password: the current one is checked (a try
+/// the throttle counts, like a sign-in), the new one must meet the rules, and every
+/// other session of the account ends. Returns how many sessions ended.
+pub async fn change_own_password(
+    db: &SqlitePool,
+    user: &SignedIn,
+    current: &str,
+    new: &str,
+    client: &str,
+    now: i64,
+) -> Result<u64, ServiceError> {
+    password::check_chosen(new, &user.name).map_err(ServiceError::Invalid)?;
+    if new == current {
+        return Err(ServiceError::Invalid(
+            "The new password is the same as the current one; choose another.".into(),
+        ));
+    }
+    let wait_secs = match count_try(db, &user.name, client, now).await? {
+        Try::Wait { wait_secs } => {
+            return Err(ServiceError::TooManyTries(wait_message(wait_secs)));
+        }
+        Try::Check { wait_secs } => wait_secs,
+    };
+    let account = store::users::credentials(db, &user.name).await?;
+    if account.as_ref().map(|a| a.id) != Some(user.user_id)
+        || !password_matches(account.as_ref(), current).await
+    {
+        tracing::warn!(user = %user.name, client, "password change refused: wrong current password");
+        return Err(ServiceError::Invalid(format!(
+            "The current password is wrong; nothing was changed.{}",
+            next_try_words(wait_secs)
+        )));
+    }
+    store::throttle::clear(db, &user.name, client).await?;
+    let hash = hash_password(new.to_string()).await?;
+    let mut tx = store::write_transaction(db).await?;
+    store::users::set_password_hash(&mut *tx, user.user_id, &hash).await?;
+    let ended =
+        store::sessions::delete_for_user_except(&mut *tx, user.user_id, &user.session_digest)
+            .await?;
+    record(
+        &mut tx,
+        &user.name,
+        "change own password",
+        &user.name,
+        None,
+        Some(format!("new password set; {ended} other session(s) ended")),
+    )
+    .await?;
+    tx.commit().await?;
+    tracing::info!(user = %user.name, sessions_ended = ended, "password changed");
+    Ok(ended)
 }
 
 /// The account a session cookie belongs to, if the session is still open at `now`.

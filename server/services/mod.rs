@@ -34,6 +34,9 @@ pub enum ServiceError {
     Problems(Vec<InputProblem>),
     #[error("{0}")]
     Conflict(String),
+    /// Too many tries in a row (the sign-in throttle); the text says how long to wait.
+    #[error("{0}")]
+    TooManyTries(String),
     /// A save made against an old version; `current` is the stored state (JSON).
     #[error("{message}")]
     Stale {

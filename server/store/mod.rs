@@ -13,6 +13,7 @@ pub mod picks;
 pub mod sea_level;
 pub mod sessions;
 pub mod studies;
+pub mod throttle;
 pub mod uploads;
 pub mod users;
 pub mod wells;

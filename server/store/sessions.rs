@@ -1,5 +1,5 @@
-//! Sessions (stored by the digest of their token) and the failed sign-ins the
-//! throttle counts. Times are Unix seconds.
+//! Sessions, stored by the digest of their token. Times are Unix seconds.
+//! (The sign-in throttle's records are in `store::throttle`.)
 
 use super::StoreResult;
 use crate::auth::Role;
@@ -84,6 +84,21 @@ pub async fn delete_for_user(db: impl SqliteExecutor<'_>, user_id: i64) -> Store
     Ok(done.rows_affected())
 }
 
+/// End every session of a user but the one stored as `keep` (after a password change
+/// made in that session); returns how many ended.
+pub async fn delete_for_user_except(
+    db: impl SqliteExecutor<'_>,
+    user_id: i64,
+    keep: &str,
+) -> StoreResult<u64> {
+    let done = sqlx::query("DELETE FROM sessions WHERE user_id = ? AND token_hash <> ?")
+        .bind(user_id)
+        .bind(keep)
+        .execute(db)
+        .await?;
+    Ok(done.rows_affected())
+}
+
 /// Forget sessions past their absolute expiry or idle since before `idle_since`.
 pub async fn delete_expired(
     db: impl SqliteExecutor<'_>,
@@ -103,68 +118,4 @@ pub async fn count_for_user(db: impl SqliteExecutor<'_>, user_id: i64) -> StoreR
         .bind(user_id)
         .fetch_one(db)
         .await
-}
-
-pub async fn record_failure(
-    db: impl SqliteExecutor<'_>,
-    user_name: &str,
-    client: &str,
-    at: i64,
-) -> StoreResult<()> {
-    sqlx::query("INSERT INTO login_failures (user_name, client, at) VALUES (?, ?, ?)")
-        .bind(user_name)
-        .bind(client)
-        .bind(at)
-        .execute(db)
-        .await?;
-    Ok(())
-}
-
-/// The time of the `n`-th most recent failure (1 = the latest) for this user name since
-/// `since`, if there were that many.
-pub async fn nth_failure_for_name(
-    db: impl SqliteExecutor<'_>,
-    user_name: &str,
-    since: i64,
-    n: i64,
-) -> StoreResult<Option<i64>> {
-    sqlx::query_scalar("SELECT at FROM login_failures WHERE user_name = ? AND at > ? ORDER BY at DESC LIMIT 1 OFFSET ?")
-        .bind(user_name)
-        .bind(since)
-        .bind(n - 1)
-        .fetch_optional(db)
-        .await
-}
-
-/// The same, for a client address.
-pub async fn nth_failure_for_client(
-    db: impl SqliteExecutor<'_>,
-    client: &str,
-    since: i64,
-    n: i64,
-) -> StoreResult<Option<i64>> {
-    sqlx::query_scalar("SELECT at FROM login_failures WHERE client = ? AND at > ? ORDER BY at DESC LIMIT 1 OFFSET ?")
-        .bind(client)
-        .bind(since)
-        .bind(n - 1)
-        .fetch_optional(db)
-        .await
-}
-
-/// Forget the failures of a user name (after a successful sign-in).
-pub async fn clear_failures(db: impl SqliteExecutor<'_>, user_name: &str) -> StoreResult<()> {
-    sqlx::query("DELETE FROM login_failures WHERE user_name = ?")
-        .bind(user_name)
-        .execute(db)
-        .await?;
-    Ok(())
-}
-
-/// Forget failures older than the throttling window.
-pub async fn prune_failures(db: impl SqliteExecutor<'_>, before: i64) -> StoreResult<()> {
-    sqlx::query("DELETE FROM login_failures WHERE at <= ?")
-        .bind(before)
-        .execute(db)
-        .await?;
-    Ok(())
 }

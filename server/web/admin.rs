@@ -1,12 +1,12 @@
 //! Managing accounts (admins only, by the rules of `crate::auth::rules`): list users,
-//! add one, change a role, reset a password (shown once), disable or enable, and sign
-//! a user out everywhere. Every change is recorded in the activity log by
+//! add one, change a role, reset a password (shown once), disable or enable, sign
+//! a user out everywhere, and clear the sign-in waits of a user. Every change is recorded in the activity log by
 //! `services::accounts`.
 
 use super::{ApiResult, AppError, AppState, PageResult};
-use crate::auth::Role;
+use crate::auth::{self, Role};
 use crate::services::ServiceError;
-use crate::services::accounts::{self, SignedIn};
+use crate::services::accounts::{self, SignInWait, SignedIn};
 use crate::services::activity::{self as log, ActivityRow, UserRow};
 use askama::Template;
 use axum::extract::{Path, State};
@@ -31,6 +31,8 @@ pub fn routes() -> Router<AppState> {
         .route("/api/admin/users/{id}/enable", post(enable_json))
         .route("/admin/users/{id}/sign-out", post(sign_out_form))
         .route("/api/admin/users/{id}/sign-out", post(sign_out_json))
+        .route("/admin/users/{id}/unlock", post(unlock_form))
+        .route("/api/admin/users/{id}/unlock", post(unlock_json))
 }
 
 /// A role with what it may do, for the page and the API.
@@ -44,6 +46,8 @@ pub struct RoleInfo {
 pub struct UsersView {
     pub users: Vec<UserRow>,
     pub roles: Vec<RoleInfo>,
+    /// Addresses that tried to sign in as an account without success, and their waits.
+    pub sign_in_waits: Vec<SignInWait>,
     /// The newest account changes.
     pub changes: Vec<ActivityRow>,
 }
@@ -65,6 +69,7 @@ async fn users_view(state: &AppState) -> ApiResult<UsersView> {
                 summary: role.summary(),
             })
             .collect(),
+        sign_in_waits: accounts::sign_in_waits(&state.db, auth::unix_now()).await?,
         changes: log::account_changes(&state.db, 50).await?,
     })
 }
@@ -306,6 +311,35 @@ async fn sign_out_json(
 ) -> ApiResult<Json<serde_json::Value>> {
     let ended = accounts::sign_out_everywhere(&state.db, id, &admin.name).await?;
     Ok(Json(serde_json::json!({ "sessions_ended": ended })))
+}
+
+fn unlocked_notice(user: &UserRow, cleared: u64) -> String {
+    format!(
+        "'{}' may sign in again from every address without waiting ({cleared} address(es) cleared).",
+        user.name
+    )
+}
+
+async fn unlock_form(
+    State(state): State<AppState>,
+    admin: SignedIn,
+    Path(id): Path<i64>,
+) -> PageResult<Response> {
+    let outcome = accounts::clear_sign_in_waits(&state.db, id, &admin.name)
+        .await
+        .map(|(user, cleared)| (unlocked_notice(&user, cleared), None));
+    render(&state, outcome).await
+}
+
+async fn unlock_json(
+    State(state): State<AppState>,
+    admin: SignedIn,
+    Path(id): Path<i64>,
+) -> ApiResult<Json<serde_json::Value>> {
+    let (user, cleared) = accounts::clear_sign_in_waits(&state.db, id, &admin.name).await?;
+    Ok(Json(
+        serde_json::json!({ "user": user, "addresses_cleared": cleared }),
+    ))
 }
 
 #[derive(Template)]

@@ -89,6 +89,25 @@ impl<S: Send + Sync> OptionalFromRequestParts<S> for SignedIn {
     }
 }
 
+/// The address a request came from (the peer's IP; headers naming another are not
+/// believed), the key of the sign-in throttle together with the user name.
+pub struct ClientAddress(pub String);
+
+fn client_address(parts: &axum::http::Extensions) -> String {
+    parts
+        .get::<ConnectInfo<SocketAddr>>()
+        .map(|c| c.0.ip().to_string())
+        .unwrap_or_else(|| "unknown".into())
+}
+
+impl<S: Send + Sync> FromRequestParts<S> for ClientAddress {
+    type Rejection = Infallible;
+
+    async fn from_request_parts(parts: &mut Parts, _: &S) -> Result<Self, Self::Rejection> {
+        Ok(ClientAddress(client_address(&parts.extensions)))
+    }
+}
+
 fn is_api(path: &str) -> bool {
     path == "/api" || path.starts_with("/api/")
 }
@@ -290,11 +309,7 @@ struct SignInForm {
 /// `POST /login`: a url-encoded form (answers with a redirect or the page again) or
 /// JSON `{"name", "password"}` (answers with the account and its CSRF token).
 async fn login(State(state): State<AppState>, request: Request) -> Response {
-    let client = request
-        .extensions()
-        .get::<ConnectInfo<SocketAddr>>()
-        .map(|c| c.0.ip().to_string())
-        .unwrap_or_else(|| "unknown".into());
+    let client = client_address(request.extensions());
     let json = request
         .headers()
         .get(CONTENT_TYPE)

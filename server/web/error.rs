@@ -57,6 +57,7 @@ impl From<crate::services::ServiceError> for AppError {
             S::Invalid(msg) => AppError::Rejected(msg),
             S::Problems(p) => AppError::Invalid(p),
             S::Conflict(msg) => AppError::Conflict(msg),
+            S::TooManyTries(msg) => AppError::TooManyRequests(msg),
             S::Stale { message, current } => AppError::Stale { message, current },
             S::Database(e) => AppError::Database(e),
             S::Internal(e) => AppError::Internal(anyhow::anyhow!(e)),

@@ -2,6 +2,7 @@
 //! they parse input, call the store or a service, and render a page or JSON.
 //! Every page has a JSON twin under `/api/`.
 
+pub mod account;
 pub mod activity;
 pub mod admin;
 pub mod assets;
@@ -83,6 +84,7 @@ pub fn router(state: AppState) -> Router {
         .merge(assets::routes())
         .merge(auth::routes())
         .merge(admin::routes())
+        .merge(account::routes())
         // Every route merged above passes the guard (sign-in, role, CSRF): merge new
         // routers above this line, never below.
         .layer(axum::middleware::from_fn_with_state(

@@ -32,7 +32,7 @@ pub const MEMBER_PASSWORD: &str = "slate-quarry-42-member";
 /// The header the CSRF token travels in.
 pub const CSRF_HEADER: &str = "X-CSRF-Token";
 /// Tables of sign-in bookkeeping, which change as requests come and go.
-pub const SESSION_TABLES: [&str; 2] = ["sessions", "login_failures"];
+pub const SESSION_TABLES: [&str; 2] = ["sessions", "sign_in_throttle"];
 
 /// The app on a port of its own, with its database, and an admin signed in.
 pub struct TestApp {
@@ -280,6 +280,23 @@ impl Agent {
             .no_proxy()
             .cookie_store(true)
             .redirect(reqwest::redirect::Policy::none())
+            .build()
+            .expect("HTTP client");
+        Agent {
+            base: base.to_string(),
+            client,
+            csrf: None,
+        }
+    }
+
+    /// An anonymous client of the app at `base` whose connections come from `address`
+    /// (another loopback address, e.g. `127.0.0.2`: a second machine, as the server sees it).
+    pub fn from_address(base: &str, address: std::net::IpAddr) -> Agent {
+        let client = Client::builder()
+            .no_proxy()
+            .cookie_store(true)
+            .redirect(reqwest::redirect::Policy::none())
+            .local_address(address)
             .build()
             .expect("HTTP client");
         Agent {
