@@ -19,6 +19,7 @@
 mod burial;
 mod frame;
 mod heat_flow;
+mod maturity;
 mod png;
 mod rift_timing;
 mod style;
@@ -34,6 +35,7 @@ pub use burial::{
 };
 pub use frame::ChartSize;
 pub use heat_flow::{HeatFlowChartData, heat_flow_chart};
+pub use maturity::{MaturityBand, MaturityChartData, MaturityHorizon, maturity_chart};
 pub use png::svg_to_png;
 pub use rift_timing::{RiftTimingData, RiftTimingWell, rift_timing_chart};
 pub use style::{lithology_colour_hex, sequential_colour_hex};

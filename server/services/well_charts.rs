@@ -1,8 +1,9 @@
 //! Mapping a well's analysis into the chart inputs of `sagline_charts`.
 
 use sagline_charts::{
-    BurialChartData, BurialHorizon, BurialUnit, BurialUnitStep, HeatFlowChartData, PhaseBand,
-    SubsidenceChartData, TectonicPoint, WaterDepthPoint,
+    BurialChartData, BurialHorizon, BurialUnit, BurialUnitStep, HeatFlowChartData, MaturityBand,
+    MaturityChartData, MaturityHorizon, PhaseBand, SubsidenceChartData, TectonicPoint,
+    WaterDepthPoint,
 };
 use sagline_science::analysis::WellAnalysis;
 
@@ -126,12 +127,47 @@ pub fn burial_data(well_name: &str, a: &WellAnalysis) -> BurialChartData {
     }
 }
 
+/// Modelled %Ro (EASY%Ro) of every horizon through time over the maturity windows
+/// (docs/science-thermal.md 1-3); empty when the well has no thermal history.
+pub fn maturity_data(well_name: &str, a: &WellAnalysis) -> MaturityChartData {
+    let thermal = a.thermal.as_ref().ok();
+    MaturityChartData {
+        title: format!("Modelled maturity (EASY%Ro), well {well_name}"),
+        horizons: thermal
+            .map(|t| {
+                t.history
+                    .horizons
+                    .iter()
+                    .zip(&t.maturity)
+                    .map(|(h, m)| MaturityHorizon {
+                        name: h.name.clone(),
+                        ro: m.points.iter().map(|p| (p.age_ma, p.ro_percent)).collect(),
+                    })
+                    .collect()
+            })
+            .unwrap_or_default(),
+        windows: thermal
+            .map(|t| {
+                t.windows
+                    .iter()
+                    .map(|w| MaturityBand {
+                        name: w.name.clone(),
+                        ro_min: w.ro_min,
+                        ro_max: w.ro_max,
+                    })
+                    .collect()
+            })
+            .unwrap_or_default(),
+    }
+}
+
 /// The charts of the well page, as inline SVG (left out of the JSON twin).
 #[derive(Debug, Default)]
 pub struct WellCharts {
     pub subsidence: String,
     pub burial: String,
     pub heat_flow: String,
+    pub maturity: String,
 }
 
 /// Draw the well page's charts, off the async workers.
@@ -145,6 +181,7 @@ pub async fn draw(
             subsidence: sagline_charts::subsidence_chart(&subsidence_data(&well_name, &a), size),
             burial: sagline_charts::burial_chart(&burial_data(&well_name, &a), size),
             heat_flow: sagline_charts::heat_flow_chart(&heat_flow_data(&well_name, &a), size),
+            maturity: sagline_charts::maturity_chart(&maturity_data(&well_name, &a), size),
         }
     })
     .await

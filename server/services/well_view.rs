@@ -341,6 +341,48 @@ pub fn well_file(
             let chart = sagline_charts::burial_chart(&well_charts::burial_data(name, a), size);
             WellFile::png(&format!("{name}-{file}"), &chart)
         }
+        "maturity.svg" => svg(sagline_charts::maturity_chart(
+            &well_charts::maturity_data(name, a),
+            size,
+        )),
+        "maturity.png" => {
+            let chart = sagline_charts::maturity_chart(&well_charts::maturity_data(name, a), size);
+            WellFile::png(&format!("{name}-{file}"), &chart)
+        }
+        "maturity.csv" => {
+            let out = analysis::well_out(a);
+            let rows = out
+                .thermal
+                .iter()
+                .flat_map(|t| {
+                    t.horizons.iter().flat_map(|h| {
+                        h.path.iter().map(|p| {
+                            vec![
+                                name.clone(),
+                                h.horizon.clone(),
+                                format!("{:.3}", p.age_ma),
+                                format!("{:.2}", p.temperature_c),
+                                format!("{:.4}", p.ro_percent),
+                            ]
+                        })
+                    })
+                })
+                .collect();
+            csv(
+                &format!(
+                    "Modelled temperature and EASY%Ro of every horizon through time, well {name} \
+                     (estimates from a model, not measurements)"
+                ),
+                &[
+                    "well",
+                    "horizon",
+                    "age_ma",
+                    "temperature_c",
+                    "easy_ro_percent",
+                ],
+                rows,
+            )
+        }
         "heat-flow.png" => {
             let chart =
                 sagline_charts::heat_flow_chart(&well_charts::heat_flow_data(name, a), size);

@@ -337,10 +337,7 @@ pub fn well_out(a: &WellAnalysis) -> WellOut {
         stretching: a.interpretation.as_ref().ok().and_then(stretching_out),
         model_choice: a.interpretation.as_ref().ok().map(model_choice_out),
         fit_note: fit_note(a),
-        thermal: a.thermal.as_ref().ok().map(|t| {
-            let ages: Vec<f64> = h.steps.iter().map(|s| s.age_ma).collect();
-            thermal::thermal_out(t, &ages)
-        }),
+        thermal: a.thermal.as_ref().ok().map(|t| thermal::thermal_out(t, h)),
         thermal_note: a.thermal.as_ref().err().cloned(),
     }
 }

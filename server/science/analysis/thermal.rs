@@ -63,6 +63,8 @@ pub struct WellThermal {
     pub surface_temperature_source: String,
     /// The crust's radiogenic heat the run used.
     pub crust: CrustalHeatProduction,
+    /// The maturity windows the passages refer to.
+    pub windows: Vec<MaturityWindow>,
 }
 
 /// The stretching events of the chosen model, oldest first, for the numerical plate:
@@ -172,6 +174,7 @@ pub fn well_thermal(
         generic_units,
         surface_temperature_source: inputs.settings.surface.source.clone(),
         crust: inputs.crust,
+        windows: inputs.windows.clone(),
     })
 }
 
@@ -193,6 +196,8 @@ pub struct ThermalOut {
     pub time_step_myr: f64,
     /// Units whose lithology had no thermal properties (generic values used).
     pub generic_units: Vec<String>,
+    /// The maturity windows (%Ro bounds) the horizons' passages refer to.
+    pub windows: Vec<MaturityWindow>,
     pub ages: Vec<ThermalAgeOut>,
     pub present_profile: Vec<thermal::DepthTemperature>,
     pub horizons: Vec<HorizonThermalOut>,
@@ -214,6 +219,8 @@ pub struct ThermalAgeOut {
 #[derive(Debug, Clone, Serialize)]
 pub struct HorizonThermalOut {
     pub horizon: String,
+    /// Depth below the sea floor (or land surface) today, m.
+    pub present_depth_m: Option<f64>,
     pub present_temperature_c: f64,
     pub present_ro_percent: f64,
     pub windows: Vec<maturity::WindowPassage>,
@@ -228,7 +235,9 @@ pub struct PathPointOut {
 }
 
 /// The thermal part of the contract for one well.
-pub fn thermal_out(t: &WellThermal, restored_ages: &[f64]) -> ThermalOut {
+pub fn thermal_out(t: &WellThermal, well: &WellHistory) -> ThermalOut {
+    let restored_ages: Vec<f64> = well.steps.iter().map(|s| s.age_ma).collect();
+    let today = &well.steps[well.steps.len() - 1];
     ThermalOut {
         method: t.history.method.label(),
         stretching_model: super::model_key(t.model),
@@ -238,6 +247,7 @@ pub fn thermal_out(t: &WellThermal, restored_ages: &[f64]) -> ThermalOut {
         crust_heat_production_decay_km: t.crust.decay_depth_m / 1e3,
         time_step_myr: t.history.step_myr,
         generic_units: t.generic_units.clone(),
+        windows: t.windows.clone(),
         ages: t
             .history
             .snapshots
@@ -260,10 +270,11 @@ pub fn thermal_out(t: &WellThermal, restored_ages: &[f64]) -> ThermalOut {
                 let last = m.points.last();
                 HorizonThermalOut {
                     horizon: h.name.clone(),
+                    present_depth_m: today.horizon_depth_m(h.horizon),
                     present_temperature_c: last.map_or(f64::NAN, |p| p.temperature_c),
                     present_ro_percent: last.map_or(f64::NAN, |p| p.ro_percent),
                     windows: m.windows.clone(),
-                    path: thinned(m, restored_ages),
+                    path: thinned(m, &restored_ages),
                 }
             })
             .collect(),
