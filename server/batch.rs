@@ -46,8 +46,13 @@ pub struct AnalyzeArgs {
     /// used instead of the proposal.
     #[arg(long)]
     pub picks: Option<PathBuf>,
+    /// Measured temperatures, vitrinite reflectance and surface heat flow (CSV: well,
+    /// depth_m, kind, value, uncertainty, optional note): each well's model is compared
+    /// with its points and a basal heat-flow offset proposed (`calibration` in the output).
+    #[arg(long)]
+    pub calibration: Option<PathBuf>,
     /// Only decompact and backstrip: leave `phases` empty and `stretching` null (faster).
-    #[arg(long, conflicts_with = "picks")]
+    #[arg(long, conflicts_with_all = ["picks", "calibration"])]
     pub backstrip_only: bool,
     #[arg(long, value_enum, default_value = "json")]
     pub format: OutputFormat,
@@ -225,10 +230,43 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
         },
         None => Vec::new(),
     };
+    let calibration = match &args.calibration {
+        Some(path) => match input::parse_calibration(&read(path)?) {
+            Ok(p) => p,
+            Err(mut p) => {
+                input::name_file(&mut p, &file_name(path));
+                problems.extend(p);
+                Vec::new()
+            }
+        },
+        None => Vec::new(),
+    };
     let tops = match tops {
         Some(t) if problems.is_empty() => t,
         _ => return Err(problems.into()),
     };
+    let calibration_file = args
+        .calibration
+        .as_deref()
+        .map(file_name)
+        .unwrap_or_default();
+    let strangers: Vec<InputProblem> = calibration
+        .iter()
+        .filter(|p| !tops.wells.iter().any(|w| w.name == p.well))
+        .map(|p| InputProblem {
+            file: calibration_file.clone(),
+            line: Some(p.line),
+            column: Some("well".into()),
+            reason: format!(
+                "well \"{}\" is not in the tops file {}",
+                p.well,
+                file_name(&args.tops)
+            ),
+        })
+        .collect();
+    if !strangers.is_empty() {
+        return Err(strangers.into());
+    }
     let picks_file = args.picks.as_deref().map(file_name).unwrap_or_default();
     let unknown: Vec<InputProblem> = picks
         .iter()
@@ -260,6 +298,7 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
         inputs: &inputs,
         timing: &timing,
         backstrip_only: args.backstrip_only,
+        calibration: &calibration,
     };
     // Every input is valid: from here on the output is written as the wells complete.
     let mut sink = Sink::open(args.out.as_deref())?;
@@ -342,6 +381,8 @@ struct Run<'a> {
     inputs: &'a StudyInputs,
     timing: &'a (dyn Fn(&str) -> Option<RiftTiming> + Sync),
     backstrip_only: bool,
+    /// Calibration points of any of the wells (may be empty).
+    calibration: &'a [input::CalibrationPoint],
 }
 
 /// Wells analysed together in parallel before their results are written: enough to
@@ -359,7 +400,9 @@ impl Run<'_> {
             } else {
                 analysis::analyse_wells(wells, self.inputs, self.timing, tick)
             };
-            analysis::report(wells, &results, self.inputs).wells
+            let mut outs = analysis::report(wells, &results, self.inputs).wells;
+            analysis::attach_calibration(wells, &results, &mut outs, self.inputs, self.calibration);
+            outs
         };
         match catch_unwind(AssertUnwindSafe(|| analyse(wells))) {
             Ok(outs) => outs,
@@ -422,6 +465,7 @@ fn internal_failure(well: &str) -> WellOut {
         fit_note: None,
         thermal: None,
         thermal_note: None,
+        calibration: None,
     }
 }
 
@@ -576,6 +620,7 @@ mod tests {
                 inputs: &inputs,
                 timing: &|_| None,
                 backstrip_only,
+                calibration: &[],
             };
             let outs = run.well_outs(&wells, &|| {});
             let names: Vec<&str> = outs.iter().map(|w| w.well.as_str()).collect();

@@ -1129,3 +1129,62 @@ fn sigterm_stops_the_server_cleanly() {
         "the server did not log a clean stop:\n{log}"
     );
 }
+
+#[test]
+fn calibration_points_are_compared_and_a_heat_flow_offset_proposed() {
+    let ws = Workspace::new();
+    let tops = ws.file("orrin_tops.csv", SMALL_TOPS);
+    // Invented measurements: two temperatures and one reflectance in Orrin-1.
+    let calibration = ws.file(
+        "orrin_calibration.csv",
+        "well,depth_m,kind,value,uncertainty,note\n\
+         Orrin-1,800,temperature,40,3,corrected bottom-hole\n\
+         Orrin-1,1500,temperature,62,3,\n\
+         Orrin-1,1400,vitrinite_reflectance,0.45,0.05,\n",
+    );
+    let json = success_json(&ws.analyze(&[&tops, "--calibration", &calibration]));
+    let well = &json["wells"][0];
+    assert!(well["thermal"].is_object(), "{well}");
+    let c = &well["calibration"];
+    assert_eq!(c["current"]["points_used"], 3, "{c}");
+    let residuals = c["current"]["residuals"].as_array().unwrap();
+    assert_eq!(residuals[0]["note"], "corrected bottom-hole");
+    assert!(residuals.iter().all(|r| r["modelled"].is_number()), "{c}");
+    let p = &c["proposal"];
+    let (low, best, high) = (
+        p["offset_min_mw_m2"].as_f64().unwrap(),
+        p["offset_mw_m2"].as_f64().unwrap(),
+        p["offset_max_mw_m2"].as_f64().unwrap(),
+    );
+    assert!(low <= best && best <= high, "{p}");
+    assert!(
+        p["fitted"]["chi_square"].as_f64().unwrap()
+            <= c["current"]["chi_square"].as_f64().unwrap() + 1e-9,
+        "the fit cannot be worse than the model as it stands: {c}"
+    );
+}
+
+#[test]
+fn a_bad_calibration_file_is_refused() {
+    let ws = Workspace::new();
+    let tops = ws.file("orrin_tops.csv", SMALL_TOPS);
+    let calibration = ws.file(
+        "orrin_calibration.csv",
+        "well,depth_m,kind,value,uncertainty\nOrrin-1,800,temperature,450,3\nOrrin-1,900,temperature,95,3\n",
+    );
+    assert_refused(
+        &ws.analyze(&[&tops, "--calibration", &calibration]),
+        &["orrin_calibration.csv line 2, column value", "400"],
+    );
+    let stranger = ws.file(
+        "stranger_calibration.csv",
+        "well,depth_m,kind,value,uncertainty\nNobody-9,800,temperature,40,3\n",
+    );
+    assert_refused(
+        &ws.analyze(&[&tops, "--calibration", &stranger]),
+        &[
+            "stranger_calibration.csv line 2, column well",
+            "not in the tops file",
+        ],
+    );
+}

@@ -195,4 +195,8 @@ pub struct WellOut {
     /// Extension: why there is no thermal history, when there is none.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub thermal_note: Option<String>,
+    /// Extension: the model against the well's calibration points, with a heat-flow
+    /// proposal (only when calibration data were given for the well).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub calibration: Option<super::calibration::WellCalibration>,
 }

@@ -2,6 +2,7 @@
 //! study's inputs once, run every well (in parallel: wells are independent), and
 //! shape the results as the JSON contract of PRODUCT.md.
 
+pub mod calibration;
 pub mod contract;
 pub mod section;
 pub mod thermal;
@@ -339,6 +340,7 @@ pub fn well_out(a: &WellAnalysis) -> WellOut {
         fit_note: fit_note(a),
         thermal: a.thermal.as_ref().ok().map(|t| thermal::thermal_out(t, h)),
         thermal_note: a.thermal.as_ref().err().cloned(),
+        calibration: None,
     }
 }
 
@@ -561,6 +563,34 @@ pub fn failed_well_out(name: &str, error: &ScienceError) -> WellOut {
         fit_note: None,
         thermal: None,
         thermal_note: None,
+        calibration: None,
+    }
+}
+
+/// Add each well's calibration (its points against the model, and the heat-flow
+/// proposal) to its report entry; a well with points but no thermal history says why
+/// in its warnings.
+pub fn attach_calibration(
+    wells: &[WellColumn],
+    results: &[Result<WellAnalysis, ScienceError>],
+    outs: &mut [WellOut],
+    inputs: &StudyInputs,
+    points: &[crate::input::CalibrationPoint],
+) {
+    for ((w, r), out) in wells.iter().zip(results).zip(outs.iter_mut()) {
+        if !points.iter().any(|p| p.well == w.name) {
+            continue;
+        }
+        let Ok(a) = r else { continue };
+        match &a.thermal {
+            Ok(t) => match calibration::calibrate_well(w, &a.history, t, &inputs.thermal, points) {
+                Ok(c) => out.calibration = Some(c),
+                Err(e) => out.warnings.push(format!("calibration not done: {e}")),
+            },
+            Err(why) => out
+                .warnings
+                .push(format!("calibration points not compared: {why}")),
+        }
     }
 }
 

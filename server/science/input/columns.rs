@@ -73,6 +73,7 @@ pub enum FileKind {
     Wells,
     SeaLevel,
     Picks,
+    Calibration,
 }
 
 impl FileKind {
@@ -83,6 +84,7 @@ impl FileKind {
             FileKind::Wells => "wells.csv",
             FileKind::SeaLevel => "sea-level.csv",
             FileKind::Picks => "picks.csv",
+            FileKind::Calibration => "calibration.csv",
         }
     }
 
@@ -97,6 +99,7 @@ impl FileKind {
             FileKind::Wells => &WELLS,
             FileKind::SeaLevel => &SEA_LEVEL,
             FileKind::Picks => &PICKS,
+            FileKind::Calibration => &CALIBRATION,
         }
     }
 }
@@ -163,6 +166,20 @@ static SEA_LEVEL: Schema = Schema {
 static PICKS: Schema = Schema {
     columns: &["well", "rift_onset_ma", "rift_end_ma", "event"],
     required: &[&[&["well"]], &[&["rift_onset_ma"]], &[&["rift_end_ma"]]],
+    partners: &[],
+    exclusive: &[],
+    others_are_notes: false,
+};
+
+static CALIBRATION: Schema = Schema {
+    columns: &["well", "depth_m", "kind", "value", "uncertainty", "note"],
+    required: &[
+        &[&["well"]],
+        &[&["depth_m"]],
+        &[&["kind"]],
+        &[&["value"]],
+        &[&["uncertainty"]],
+    ],
     partners: &[],
     exclusive: &[],
     others_are_notes: false,

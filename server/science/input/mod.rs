@@ -83,6 +83,7 @@
 //! ```
 
 mod bounds;
+mod calibration;
 mod columns;
 mod guess;
 mod lithology;
@@ -104,6 +105,7 @@ pub use bounds::{
     AGE_MA, COORDINATE_M, DEPTH_M, ERODED_M, MAX_NAME_CHARS, MAX_NOTE_CHARS, PhysicalRange,
     SEA_LEVEL_M, WATER_DEPTH_M, check_length,
 };
+pub use calibration::{CalibrationKind, CalibrationPoint, parse_calibration};
 pub use columns::{ColumnMapping, DepthUnit, FileKind, MatchedColumn};
 pub use guess::guess_mapping;
 pub use lithology::MIX_SUM_TOLERANCE_PERCENT;
