@@ -137,13 +137,8 @@ fn draw(data: &MaturityChartData, doc: &mut Document, body: Area) {
             ),
         ));
     }
-    let entries: Vec<LegendEntry> = horizons
-        .iter()
-        .enumerate()
-        .map(|(i, (name, _))| LegendEntry::new(*name, Swatch::Line(colour(i))))
-        .collect();
-    let (series, below) = legend(side, "Horizons", &entries, 6.0);
-    doc.push(series);
+    // The windows first: two entries that must show, however many horizons follow.
+    let mut below = 6.0;
     if !windows.is_empty() {
         let entries: Vec<LegendEntry> = windows
             .iter()
@@ -160,8 +155,16 @@ fn draw(data: &MaturityChartData, doc: &mut Document, body: Area) {
                 )
             })
             .collect();
-        doc.push(legend(side, "Windows", &entries, below).0);
+        let (block, next) = legend(side, "Windows", &entries, below);
+        doc.push(block);
+        below = next;
     }
+    let entries: Vec<LegendEntry> = horizons
+        .iter()
+        .enumerate()
+        .map(|(i, (name, _))| LegendEntry::new(*name, Swatch::Line(colour(i))))
+        .collect();
+    doc.push(legend(side, "Horizons", &entries, below).0);
 }
 
 #[cfg(test)]

@@ -188,7 +188,9 @@ pub const THERMAL_HEAT_FLOW_BASIS: &str = "basement_heat_flow_mw_m2: heat flow i
 #[derive(Debug, Clone, Serialize)]
 pub struct ThermalOut {
     pub method: &'static str,
+    /// The chosen stretching model's key, and its name in words.
     pub stretching_model: &'static str,
+    pub stretching_model_label: &'static str,
     pub heat_flow_basis: &'static str,
     pub surface_temperature_source: String,
     pub crust_heat_production_uw_m3: f64,
@@ -241,6 +243,7 @@ pub fn thermal_out(t: &WellThermal, well: &WellHistory) -> ThermalOut {
     ThermalOut {
         method: t.history.method.label(),
         stretching_model: super::model_key(t.model),
+        stretching_model_label: t.model.label(),
         heat_flow_basis: THERMAL_HEAT_FLOW_BASIS,
         surface_temperature_source: t.surface_temperature_source.clone(),
         crust_heat_production_uw_m3: t.crust.surface_production_w_m3 * 1e6,
