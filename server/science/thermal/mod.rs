@@ -181,6 +181,10 @@ pub struct ThermalSettings {
     pub max_step_myr: f64,
     /// Node spacing through the sediment, m.
     pub sediment_node_spacing_m: f64,
+    /// Least time between two points of a horizon's temperature path, Myr (every
+    /// restored age is a point too). EASY%Ro integrates each segment exactly, so this
+    /// only sets how closely the path's curvature is followed, and the maturity's cost.
+    pub path_sample_myr: f64,
 }
 
 impl Default for ThermalSettings {
@@ -198,6 +202,7 @@ impl Default for ThermalSettings {
             method: ThermalMethod::Transient,
             max_step_myr: 0.25,
             sediment_node_spacing_m: 50.0,
+            path_sample_myr: 1.0,
         }
     }
 }
@@ -252,6 +257,13 @@ impl ThermalSettings {
             1.0,
             1000.0,
             "1 to 1000 m",
+        )?;
+        within(
+            "temperature path sampling",
+            self.path_sample_myr,
+            1e-4,
+            10.0,
+            "0.0001 to 10 Myr",
         )
     }
 }
@@ -317,9 +329,9 @@ fn basal_flow_w_m2(points: &[(f64, f64)], age_ma: f64) -> f64 {
 /// stretching model's top-of-basement heat flow on a 1 Myr grid.
 ///
 /// Method and grid in the module note and [`solver`]. The run starts in steady state at
-/// the oldest age. Horizon paths are sampled at every time step and every restored age
-/// (a horizon's depth between two restored ages is linear in time, as its unit's top
-/// and base are).
+/// the oldest age. Horizon paths are sampled every [`ThermalSettings::path_sample_myr`]
+/// (at the time steps) and at every restored age (a horizon's depth between two
+/// restored ages is linear in time, as its unit's top and base are).
 ///
 /// Errors: settings out of range ([`ThermalSettings`]), a heat flow outside 0 to 500
 /// mW m^-2 or not finite, a property list that does not match the units, a history of
@@ -374,6 +386,8 @@ pub fn temperature_history(
     // Temperatures at the nodes (transient only).
     let mut temperatures: Vec<f64> = Vec::new();
     let mut last_layers: Vec<ThermalLayer> = Vec::new();
+    // Age of the last point put on the horizon paths.
+    let mut last_sampled = f64::INFINITY;
 
     for k in 0..steps.len() {
         // The interval ending at step k (for k = 0, the first column as it stands).
@@ -410,6 +424,12 @@ pub fn temperature_history(
         for j in 1..=substeps {
             let (s_old, s_new) = ((j - 1) as f64 / substeps as f64, j as f64 / substeps as f64);
             let age = age_at(s_new);
+            let sample_now = j < substeps && last_sampled - age >= settings.path_sample_myr - 1e-9;
+            // The steady method carries nothing from step to step: only the points it
+            // reports need computing.
+            if settings.method == ThermalMethod::SteadyPerStep && j < substeps && !sample_now {
+                continue;
+            }
             let layers = layers_at(&interval, s_new);
             let surface_c = settings.surface.at(age);
             let q_b = basal_flow_w_m2(basal_heat_flow, age);
@@ -433,7 +453,8 @@ pub fn temperature_history(
                     buried
                 };
             }
-            if j < substeps {
+            if sample_now {
+                last_sampled = age;
                 sample_horizons(
                     &mut paths,
                     age,
@@ -450,6 +471,7 @@ pub fn temperature_history(
             last_layers = layers;
         }
         // The restored age itself: every horizon present, and the snapshot.
+        last_sampled = younger_age;
         let surface_c = settings.surface.at(younger_age);
         let q_b = basal_flow_w_m2(basal_heat_flow, younger_age);
         let sediment = steps[k].sediment_thickness_m;
