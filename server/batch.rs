@@ -14,6 +14,7 @@ use sagline_science::analysis::thermal::ThermalInputs;
 use sagline_science::analysis::{self, RiftTiming, StudyInputs};
 use sagline_science::input::{self, InputProblem, TopsOptions};
 use sagline_science::lithology::{Catalogue, Lithology};
+use sagline_science::thermal::{SurfaceTemperature, ThermalMethod};
 use sagline_science::{ModelParameters, SeaLevelCurve, WellColumn};
 use serde::{Deserialize, Serialize};
 use std::cell::RefCell;
@@ -117,6 +118,63 @@ struct ParamsFile {
     model: ModelParameters,
     #[serde(default)]
     lithologies: Vec<LithologyEntry>,
+    #[serde(default)]
+    thermal: ThermalEntry,
+}
+
+/// The `thermal` object of the `--params` file; every field optional.
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct ThermalEntry {
+    /// Surface (sea-floor) temperature at every age, °C.
+    surface_temperature_c: Option<f64>,
+    /// Radiogenic heat production at the top of the crust, µW/m³.
+    crust_heat_production_uw_m3: Option<f64>,
+    /// Depth over which it falls by a factor e, km.
+    crust_heat_production_decay_km: Option<f64>,
+    /// `transient` (the default) or `steady_per_step`.
+    method: Option<ThermalMethod>,
+}
+
+impl ThermalEntry {
+    /// The thermal inputs: the defaults with what the file sets, each checked.
+    fn inputs(&self, source: &str) -> Result<ThermalInputs, BatchError> {
+        let mut inputs = ThermalInputs::default();
+        let bad = |e: String| BatchError(format!("{source}: thermal: {e}"));
+        if let Some(t) = self.surface_temperature_c {
+            inputs.settings.surface =
+                SurfaceTemperature::constant(t, format!("{t} °C at every age, from {source}"))
+                    .map_err(|e| bad(e.to_string()))?;
+        }
+        if let Some(a) = self.crust_heat_production_uw_m3 {
+            if !(a.is_finite() && (0.0..=20.0).contains(&a)) {
+                return Err(bad(format!(
+                    "crust_heat_production_uw_m3 {a} is outside 0 to 20 µW/m³"
+                )));
+            }
+            inputs.crust.surface_production_w_m3 = a * 1e-6;
+        }
+        if let Some(d) = self.crust_heat_production_decay_km {
+            if !(d.is_finite() && (0.1..=100.0).contains(&d)) {
+                return Err(bad(format!(
+                    "crust_heat_production_decay_km {d} is outside 0.1 to 100 km"
+                )));
+            }
+            inputs.crust.decay_depth_m = d * 1e3;
+        }
+        if let Some(m) = self.method {
+            inputs.settings.method = m;
+        }
+        Ok(inputs)
+    }
+}
+
+/// What a `--params` file gives: the model parameters, the lithology catalogue and the
+/// thermal inputs.
+pub struct LoadedParameters {
+    pub params: ModelParameters,
+    pub catalogue: Catalogue,
+    pub thermal: ThermalInputs,
 }
 
 #[derive(Debug, Deserialize)]
@@ -129,8 +187,8 @@ struct LithologyEntry {
 }
 
 /// Read `--params`: parameters validated against their physical ranges, lithologies
-/// merged by name into the published defaults.
-pub fn load_parameters(path: Option<&Path>) -> Result<(ModelParameters, Catalogue), BatchError> {
+/// merged by name into the published defaults, thermal settings over their defaults.
+pub fn load_parameters(path: Option<&Path>) -> Result<LoadedParameters, BatchError> {
     let file: ParamsFile = match path {
         None => ParamsFile::default(),
         Some(p) => {
@@ -177,11 +235,21 @@ pub fn load_parameters(path: Option<&Path>) -> Result<(ModelParameters, Catalogu
         }
     }
     let catalogue = Catalogue::new(lithologies).map_err(|e| BatchError(e.to_string()))?;
-    Ok((file.model, catalogue))
+    let source = path.map(file_name).unwrap_or_else(|| "the defaults".into());
+    let thermal = file.thermal.inputs(&source)?;
+    Ok(LoadedParameters {
+        params: file.model,
+        catalogue,
+        thermal,
+    })
 }
 
 fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
-    let (params, catalogue) = load_parameters(args.params.as_deref())?;
+    let LoadedParameters {
+        params,
+        catalogue,
+        thermal,
+    } = load_parameters(args.params.as_deref())?;
 
     // Read and validate every file first, reporting all problems together.
     let mut problems = Vec::new();
@@ -290,7 +358,7 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
         params,
         catalogue,
         sea_level,
-        thermal: ThermalInputs::default(),
+        thermal,
     };
     let timing = |well: &str| input::timings_of(&picks, well);
     let run = Run {

@@ -323,7 +323,11 @@ fn request(args: &SectionArgs, points: Vec<MapPoint>) -> Result<SectionRequest, 
 }
 
 fn section(args: &SectionArgs) -> Result<(), BatchError> {
-    let (params, catalogue) = batch::load_parameters(args.params.as_deref())?;
+    let batch::LoadedParameters {
+        params,
+        catalogue,
+        thermal,
+    } = batch::load_parameters(args.params.as_deref())?;
     let points = match (&args.line, &args.line_file) {
         (Some(text), _) => parse_line(text).map_err(|e| BatchError(format!("--line: {e}")))?,
         (None, Some(path)) => parse_line_file(path)?,
@@ -378,7 +382,7 @@ fn section(args: &SectionArgs) -> Result<(), BatchError> {
         params,
         catalogue,
         sea_level,
-        thermal: sagline_science::analysis::thermal::ThermalInputs::default(),
+        thermal,
     };
     let mut histories = Vec::with_capacity(tops.wells.len());
     for (well, result) in

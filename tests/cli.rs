@@ -1188,3 +1188,34 @@ fn a_bad_calibration_file_is_refused() {
         ],
     );
 }
+
+#[test]
+fn a_params_file_sets_the_surface_temperature_and_the_thermal_method() {
+    let ws = Workspace::new();
+    let tops = ws.file("orrin_tops.csv", SMALL_TOPS);
+    let params = ws.file(
+        "warm.json",
+        r#"{"thermal": {"surface_temperature_c": 22, "method": "steady_per_step", "crust_heat_production_uw_m3": 1.0}}"#,
+    );
+    let json = success_json(&ws.analyze(&[&tops, "--params", &params]));
+    let t = &json["wells"][0]["thermal"];
+    assert_eq!(t["method"], "steady geotherm at each age", "{t}");
+    assert!(
+        t["surface_temperature_source"]
+            .as_str()
+            .unwrap()
+            .contains("22 °C")
+    );
+    assert_eq!(t["crust_heat_production_uw_m3"], 1.0);
+    // The sea floor sits at the surface temperature today.
+    assert_eq!(t["horizons"][0]["present_temperature_c"], 22.0);
+
+    let kelvin = ws.file(
+        "kelvin.json",
+        r#"{"thermal": {"surface_temperature_c": 295}}"#,
+    );
+    assert_refused(
+        &ws.analyze(&[&tops, "--params", &kelvin]),
+        &["kelvin.json: thermal", "surface temperature"],
+    );
+}

@@ -42,7 +42,7 @@ const SECONDS_PER_MYR: f64 = 1.0e6 * 365.25 * 86_400.0;
 pub const MAX_STEPS: usize = 4000;
 
 /// The usual mean annual surface temperature when a study has set none: 10 °C
-/// (a temperate value, common practice \[assumed\]; set the study's own).
+/// (a temperate value, common practice \[assumed\]; a batch run can set its own in its parameters file).
 pub const DEFAULT_SURFACE_TEMPERATURE_C: f64 = 10.0;
 
 /// The surface (or sea-floor) temperature through time: one value, or a curve by age
@@ -67,7 +67,7 @@ impl SurfaceTemperature {
     pub fn default_assumed() -> Self {
         SurfaceTemperature {
             points: vec![(0.0, DEFAULT_SURFACE_TEMPERATURE_C)],
-            source: "10 °C at every age, a typical value [assumed]; set the study's own".into(),
+            source: "10 °C at every age, a typical value [assumed]".into(),
         }
     }
 
