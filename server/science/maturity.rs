@@ -163,9 +163,13 @@ pub fn easy_ro_history(
     let mut integrals = Vec::with_capacity(path.len());
     let mut reaction_integral = [0.0_f64; 20];
     integrals.push(reaction_integral);
+    // J(T) of every reaction at a point serves the segments on both sides of it.
+    let mut j_from = temperature_integrals(path[0]);
     for pair in path.windows(2) {
-        add_segment(&mut reaction_integral, pair[0], pair[1], 1.0);
+        let j_to = temperature_integrals(pair[1]);
+        add_whole_segment(&mut reaction_integral, pair[0], pair[1], &j_from, &j_to);
         integrals.push(reaction_integral);
+        j_from = j_to;
     }
     let points: Vec<ReflectancePoint> = path
         .iter()
@@ -249,6 +253,37 @@ fn point_at(p: TimeTemperature, reaction_integral: &[f64; 20]) -> ReflectancePoi
         temperature_c: p.temperature_c,
         converted_fraction,
         ro_percent: ro_from_fraction(converted_fraction),
+    }
+}
+
+/// `J(T)` of every reaction at the temperature of `p`.
+fn temperature_integrals(p: TimeTemperature) -> [f64; 20] {
+    let t = p.temperature_c + KELVIN_AT_0_C;
+    ACTIVATION_ENERGIES_KCAL_MOL.map(|e| temperature_integral(e / GAS_CONSTANT_KCAL_MOL_K, t))
+}
+
+/// [`add_segment`] over the whole segment, with `J` at its ends already known: the same
+/// arithmetic as [`segment_integral`], each end's `J` computed once for two segments.
+fn add_whole_segment(
+    reaction_integral: &mut [f64; 20],
+    from: TimeTemperature,
+    to: TimeTemperature,
+    j_from: &[f64; 20],
+    j_to: &[f64; 20],
+) {
+    let duration_s = (from.age_ma - to.age_ma) * SECONDS_PER_MYR;
+    if duration_s <= 0.0 {
+        return;
+    }
+    let t1 = from.temperature_c + KELVIN_AT_0_C;
+    let t2 = to.temperature_c + KELVIN_AT_0_C;
+    if (t2 - t1).abs() < 1e-3 {
+        add_segment(reaction_integral, from, to, 1.0);
+        return;
+    }
+    let heating_rate = (t2 - t1) / duration_s;
+    for (i, integral) in reaction_integral.iter_mut().enumerate() {
+        *integral += FREQUENCY_FACTOR_PER_S * (j_to[i] - j_from[i]) / heating_rate;
     }
 }
 
