@@ -128,6 +128,56 @@ impl Interval {
     }
 }
 
+impl Interval {
+    /// [`Interval::depth_before`] of every one of `depths_m` (increasing), in one walk
+    /// down the column: the units are top down at every fraction, so the unit holding
+    /// a deeper point is never above the one holding a shallower point.
+    pub fn depths_before(&self, depths_m: &[f64], s_new: f64, s_old: f64) -> Vec<f64> {
+        let base_new = self.thickness_m(s_new);
+        let base_old = self.thickness_m(s_old);
+        // Each unit at both fractions: (top, base) new, (top, base) old.
+        let placed: Vec<((f64, f64), (f64, f64))> = self
+            .pairs
+            .iter()
+            .map(|(o, y)| {
+                (
+                    (
+                        lerp(o.top_m, y.top_m, s_new),
+                        lerp(o.base_m, y.base_m, s_new),
+                    ),
+                    (
+                        lerp(o.top_m, y.top_m, s_old),
+                        lerp(o.base_m, y.base_m, s_old),
+                    ),
+                )
+            })
+            .collect();
+        let mut i = 0;
+        depths_m
+            .iter()
+            .map(|&depth| {
+                if depth >= base_new {
+                    return depth - base_new + base_old;
+                }
+                while i < placed.len() {
+                    let ((top, base), _) = placed[i];
+                    if depth <= base && base > top {
+                        break;
+                    }
+                    i += 1;
+                }
+                match placed.get(i) {
+                    Some(&((top, base), (top_old, base_old_unit))) => {
+                        let f = ((depth - top) / (base - top)).clamp(0.0, 1.0);
+                        top_old + f * (base_old_unit - top_old)
+                    }
+                    None => depth,
+                }
+            })
+            .collect()
+    }
+}
+
 fn lerp(a: f64, b: f64, s: f64) -> f64 {
     a + (b - a) * s
 }

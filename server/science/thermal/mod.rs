@@ -434,12 +434,13 @@ pub fn temperature_history(
             let surface_c = settings.surface.at(age);
             let q_b = basal_flow_w_m2(basal_heat_flow, age);
             if settings.method == ThermalMethod::Transient {
-                let buried: Vec<f64> = nodes
-                    .iter()
-                    .map(|&z| {
-                        let before = interval.depth_before(z, s_new, s_old);
+                let surface_before = settings.surface.at(age_at(s_old));
+                let buried: Vec<f64> = interval
+                    .depths_before(&nodes, s_new, s_old)
+                    .into_iter()
+                    .map(|before| {
                         if before <= 0.0 {
-                            settings.surface.at(age_at(s_old))
+                            surface_before
                         } else {
                             solver::temperature_at(&nodes, &temperatures, before)
                         }

@@ -480,3 +480,75 @@ fn sampling_the_paths_every_million_years_keeps_the_maturity() {
         assert!((x - y).abs() < 0.005, "{a:?} vs {b:?}");
     }
 }
+
+/// The one-walk remap of the burial step gives what the point-by-point one gives, on
+/// every node of a column with an eroded section, a hiatus and growing units.
+#[test]
+fn the_walk_down_the_column_matches_the_point_by_point_remap() {
+    let history = fast_burial_well();
+    let layered = two_layer_well();
+    let eroded = eroded_well();
+    for h in [&history, &layered, &eroded] {
+        for k in 1..h.steps.len() {
+            let interval = super::column::Interval::new(&h.steps[k - 1], &h.steps[k]);
+            let depths: Vec<f64> = (0..200).map(|i| i as f64 * 30.0).collect();
+            for (s_new, s_old) in [(0.5, 0.25), (1.0, 0.75), (0.1, 0.0)] {
+                let walked = interval.depths_before(&depths, s_new, s_old);
+                for (z, w) in depths.iter().zip(&walked) {
+                    let one = interval.depth_before(*z, s_new, s_old);
+                    assert!((one - w).abs() < 1e-9, "at {z} m: {one} vs {w}");
+                }
+            }
+        }
+    }
+}
+
+/// An invented well with an unconformity at 1,000 m: 800 m laid down on the surface of
+/// 50 Ma were eroded before deposition resumed at 20 Ma.
+fn eroded_well() -> WellHistory {
+    let mut unconformity = surface("Below unconformity", 1000.0, 50.0, Some("sandstone"));
+    unconformity.erosion = Some(crate::column::Erosion {
+        eroded_m: 800.0,
+        eroded_at_ma: 40.0,
+    });
+    let well = WellColumn::new(
+        "Test eroded",
+        vec![
+            surface("Sea floor", 0.0, 0.0, Some("shale")),
+            surface("Above unconformity", 1000.0, 20.0, Some("sandstone")),
+            unconformity,
+            surface("Base", 3000.0, 100.0, None),
+        ],
+    )
+    .unwrap();
+    history_of(&well, &Catalogue::published_defaults())
+}
+
+#[test]
+fn an_eroded_section_cools_its_horizons_and_the_history_runs() {
+    let history = eroded_well();
+    assert!(
+        history.steps.iter().any(|s| s.eroded_section_m.is_some()),
+        "the test well has an eroded section"
+    );
+    let properties: Vec<ThermalProperties> = history
+        .unit_lithologies
+        .iter()
+        .map(|_| props(2.5, 1.0))
+        .collect();
+    let thermal = temperature_history(
+        &history,
+        &properties,
+        &[(0.0, 60.0)],
+        &settings(ThermalMethod::Transient),
+    )
+    .unwrap();
+    // The base was deepest when the eroded section was thickest (40 Ma), and cooled as
+    // it was removed (to 20 Ma).
+    let at_40 = at_age(&thermal, "Base", 40.0);
+    let at_20 = at_age(&thermal, "Base", 20.0);
+    assert!(
+        at_40 > at_20 + 5.0,
+        "{at_40} °C at 40 Ma, {at_20} °C at 20 Ma"
+    );
+}
