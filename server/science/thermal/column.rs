@@ -109,6 +109,8 @@ impl Interval {
     /// Where the grain now at depth `depth_m` (fraction `s_new`) was at fraction `s_old`
     /// (m below the surface; 0 for sediment laid down in between). Below the sediment,
     /// the basement moves with the base of the column.
+    /// The point-by-point form, kept as the reference the walk is tested against.
+    #[cfg(test)]
     pub fn depth_before(&self, depth_m: f64, s_new: f64, s_old: f64) -> f64 {
         let base_new = self.thickness_m(s_new);
         if depth_m >= base_new {
