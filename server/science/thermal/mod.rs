@@ -328,7 +328,7 @@ fn basal_flow_w_m2(points: &[(f64, f64)], age_ma: f64) -> f64 {
 /// the heat flow into the base of the sediment, (age Ma, mW m^-2) oldest first, e.g. the
 /// stretching model's top-of-basement heat flow on a 1 Myr grid.
 ///
-/// Method and grid in the module note and [`solver`]. The run starts in steady state at
+/// Method and grid in the module note and the solver (`thermal/solver.rs`). The run starts in steady state at
 /// the oldest age. Horizon paths are sampled every [`ThermalSettings::path_sample_myr`]
 /// (at the time steps) and at every restored age (a horizon's depth between two
 /// restored ages is linear in time, as its unit's top and base are).
