@@ -194,6 +194,37 @@ async fn a_section_added_by_coordinates_is_listed_with_its_wells_ordered_along_i
     assert_eq!(svg.status, StatusCode::OK, "{}", svg.body);
     assert!(svg.content_type.starts_with("image/svg+xml"));
     assert!(svg.body.contains("data-series=\"flexural\""));
+    let restored = s
+        .app
+        .get(&format!("{page_path}/download/restored.svg"))
+        .await;
+    assert_eq!(restored.status, StatusCode::OK, "{}", restored.body);
+    for (name, _, _) in &expected {
+        assert!(
+            restored.body.contains(&format!("data-well=\"{name}\"")),
+            "{name} in the restored section"
+        );
+    }
+    let png = s
+        .app
+        .get(&format!("{page_path}/download/deflection.png"))
+        .await;
+    assert_eq!(png.status, StatusCode::OK);
+    assert_eq!(png.content_type, "image/png");
+    let csv = s
+        .app
+        .get(&format!("{page_path}/download/comparison.csv"))
+        .await;
+    assert_eq!(csv.status, StatusCode::OK, "{}", csv.body);
+    assert!(csv.body.contains("well,distance_m,age_ma,te_km,airy_tectonic_subsidence_m,flexural_tectonic_subsidence_m,flexural_minus_airy_m"), "{}", csv.body);
+    assert!(
+        csv.body.contains(&format!("{},", expected[0].0)),
+        "the first well's rows"
+    );
+    assert!(
+        csv.body.contains("qualified geoscientists"),
+        "the caution travels with the file"
+    );
 }
 
 #[tokio::test]

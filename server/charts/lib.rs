@@ -20,6 +20,7 @@ mod burial;
 mod frame;
 mod heat_flow;
 mod png;
+mod restored_section;
 mod rift_timing;
 mod section_profile;
 mod style;
@@ -36,6 +37,7 @@ pub use burial::{
 pub use frame::ChartSize;
 pub use heat_flow::{HeatFlowChartData, heat_flow_chart};
 pub use png::svg_to_png;
+pub use restored_section::{RestoredColumn, RestoredSectionChartData, restored_section_chart};
 pub use rift_timing::{RiftTimingData, RiftTimingWell, rift_timing_chart};
 pub use section_profile::{SectionProfileChartData, section_profile_chart};
 pub use style::{lithology_colour_hex, sequential_colour_hex};

@@ -71,8 +71,9 @@ fn draw(data: &SectionProfileChartData, doc: &mut Document, body: Area) {
         padded(x_lo, x_hi, 0.0, 2.0)
     };
     let (lo, hi) = extent(local.iter().chain(&flexural).map(|p| p.1)).unwrap_or((0.0, 1.0));
-    // Deflection is downward: the axis runs from 0 (top) down to the deepest value.
-    let (top, bottom) = padded(lo.min(0.0), hi.max(0.0), 0.08, 2.0);
+    // Deflection is downward, deeper lower on the page; the axis spans the values (not
+    // from 0), so the difference between the two compensations stays visible.
+    let (top, bottom) = padded(lo, hi, 0.08, 2.0);
     let (panel, side) = plot_and_side(body);
     let spec = AxesSpec {
         x: x_lo..x_hi,

@@ -420,6 +420,8 @@ pub async fn remove(
 pub struct SectionAnalysis {
     pub report: Result<SectionReport, String>,
     pub wells_not_analysed: Vec<String>,
+    /// The study's inputs the wells were backstripped with (for what downloads say).
+    pub inputs: sagline_science::analysis::StudyInputs,
 }
 
 /// The request the section page analyses: the section's line, distance and Te on a
@@ -482,6 +484,7 @@ pub async fn analyse(
         SectionAnalysis {
             report,
             wells_not_analysed,
+            inputs: inputs.clone(),
         }
     })
     .await
@@ -611,6 +614,12 @@ pub struct SectionView {
     pub caution: &'static str,
     #[serde(skip)]
     pub chart: String,
+    /// The restored section at the shown age (left out of the JSON twin).
+    #[serde(skip)]
+    pub restored_chart: String,
+    /// What the section's downloads say about themselves.
+    #[serde(skip)]
+    pub export: super::exports::ExportMeta,
 }
 
 /// The caution shown with every section result (the science core's).
@@ -618,6 +627,39 @@ pub const CAUTION: &str = sagline_science::analysis::section::CAUTION;
 
 fn same_age(a: f64, b: f64) -> bool {
     (a - b).abs() <= sagline_science::flexure::backstrip::SAME_AGE_MYR
+}
+
+/// The header of the section's Airy-against-flexural CSV download.
+pub const COMPARISON_CSV_HEADER: [&str; 7] = [
+    "well",
+    "distance_m",
+    "age_ma",
+    "te_km",
+    "airy_tectonic_subsidence_m",
+    "flexural_tectonic_subsidence_m",
+    "flexural_minus_airy_m",
+];
+
+/// The section's Airy-against-flexural table as CSV rows (per well, youngest age first).
+pub fn comparison_rows(view: &SectionView) -> Vec<Vec<String>> {
+    let te = view.section.elastic_thickness_km.to_string();
+    view.comparison
+        .iter()
+        .flat_map(|c| {
+            let te = te.clone();
+            c.rows.iter().map(move |r| {
+                vec![
+                    c.well.clone(),
+                    format!("{:.3}", c.distance_m),
+                    r.age_ma.to_string(),
+                    te.clone(),
+                    format!("{:.3}", r.airy_m),
+                    format!("{:.3}", r.flexural_m),
+                    format!("{:.3}", r.difference_m),
+                ]
+            })
+        })
+        .collect()
 }
 
 /// The deflection chart at one age of the report.
@@ -650,6 +692,40 @@ pub fn deflection_chart(report: &SectionReport, age_ma: f64) -> String {
             .unwrap_or_default(),
     };
     sagline_charts::section_profile_chart(&data, sagline_charts::ChartSize::default())
+}
+
+/// The restored section (horizons against distance, below present sea level) at one age
+/// of the report.
+pub fn restored_chart(report: &SectionReport, age_ma: f64) -> String {
+    let wells = report
+        .restored
+        .iter()
+        .find(|a| same_age(a.age_ma, age_ma))
+        .map(|a| {
+            a.wells
+                .iter()
+                .map(|w| sagline_charts::RestoredColumn {
+                    name: w.well.clone(),
+                    distance_m: w.distance_m,
+                    surface_m: w.surface_m,
+                    base_m: w.base_m,
+                    horizons: w
+                        .horizons
+                        .iter()
+                        .map(|h| (h.horizon.clone(), h.depth_m))
+                        .collect(),
+                })
+                .collect()
+        })
+        .unwrap_or_default();
+    let data = sagline_charts::RestoredSectionChartData {
+        title: format!(
+            "Restored section {} at {} Ma (independent of Te)",
+            report.section.name, age_ma
+        ),
+        wells,
+    };
+    sagline_charts::restored_section_chart(&data, sagline_charts::ChartSize::default())
 }
 
 /// The section page's view; `age_ma` picks the age the chart and sweep table show
@@ -692,6 +768,8 @@ pub async fn section_view(
         report: None,
         caution: CAUTION,
         chart: String::new(),
+        restored_chart: String::new(),
+        export: super::exports::ExportMeta::new(&study.name, &analysis.inputs),
     };
     let report = match analysis.report {
         Ok(r) => r,
@@ -796,9 +874,11 @@ pub async fn section_view(
     if !draw {
         view.report = Some(report);
     } else if let Some(age) = shown {
-        view.chart = tokio::task::spawn_blocking(move || deflection_chart(&report, age))
-            .await
-            .map_err(|e| ServiceError::Internal(format!("the chart task failed: {e}")))?;
+        (view.chart, view.restored_chart) = tokio::task::spawn_blocking(move || {
+            (deflection_chart(&report, age), restored_chart(&report, age))
+        })
+        .await
+        .map_err(|e| ServiceError::Internal(format!("the chart task failed: {e}")))?;
     }
     Ok(view)
 }

@@ -310,13 +310,22 @@ async fn remove_json(
     ))
 }
 
-/// Downloads of the section page: the deflection chart (SVG) at `?age_ma=`.
+/// Downloads of the section page: the deflection chart and the restored section at
+/// `?age_ma=` (SVG, PNG) and
+/// the Airy-against-flexural table (CSV), each saying what it is and with the caution.
 async fn download(
     State(state): State<AppState>,
     Path((id, section_id, file)): Path<(i64, i64, String)>,
     Query(q): Query<AgeQuery>,
 ) -> ApiResult<Response> {
-    if file != "deflection.svg" {
+    const FILES: [&str; 5] = [
+        "deflection.svg",
+        "deflection.png",
+        "restored.svg",
+        "restored.png",
+        "comparison.csv",
+    ];
+    if !FILES.contains(&file.as_str()) {
         return Err(AppError::NotFound(format!("download '{file}'")));
     }
     let view = sections::section_view(
@@ -329,15 +338,47 @@ async fn download(
         true,
     )
     .await?;
-    if let Some(e) = view.analysis_error {
+    if let Some(e) = &view.analysis_error {
         return Err(AppError::Rejected(format!(
             "Section '{}' could not be analysed: {e}",
             view.section.name
         )));
     }
-    Ok(exports::download(
-        "image/svg+xml",
-        &format!("{}-{}-deflection.svg", view.study.name, view.section.name),
-        view.chart,
-    ))
+    let base = format!("{}-{}", view.study.name, view.section.name);
+    // Rasterising and writing stay off the async workers.
+    tokio::task::spawn_blocking(move || match file.as_str() {
+        "deflection.svg" => exports::download(
+            "image/svg+xml",
+            &format!("{base}-deflection.svg"),
+            view.export.stamp_svg(&view.chart),
+        ),
+        "deflection.png" => {
+            exports::png_download(&view.export, &format!("{base}-deflection.png"), &view.chart)
+        }
+        "restored.svg" => exports::download(
+            "image/svg+xml",
+            &format!("{base}-restored.svg"),
+            view.export.stamp_svg(&view.restored_chart),
+        ),
+        "restored.png" => exports::png_download(
+            &view.export,
+            &format!("{base}-restored.png"),
+            &view.restored_chart,
+        ),
+        _ => exports::download(
+            "text/csv; charset=utf-8",
+            &format!("{base}-airy-flexural.csv"),
+            exports::csv_text(
+                &view.export,
+                &format!(
+                    "Airy against flexural tectonic subsidence along section {}",
+                    view.section.name
+                ),
+                &sections::COMPARISON_CSV_HEADER,
+                &sections::comparison_rows(&view),
+            ),
+        ),
+    })
+    .await
+    .map_err(|e| AppError::Internal(anyhow::anyhow!("download task failed: {e}")))
 }
