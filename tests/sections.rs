@@ -132,6 +132,12 @@ async fn a_section_added_by_coordinates_is_listed_with_its_wells_ordered_along_i
         study_page.body.contains(&s.list()),
         "the study page links its sections"
     );
+    assert!(
+        study_page
+            .body
+            .contains("data-series=\"section\" data-name=\"Axis line\""),
+        "the study map draws the section line"
+    );
     let list = s.app.get(&s.list()).await;
     assert_eq!(list.status, StatusCode::OK);
     assert!(list.body.contains("Axis line"), "{}", list.body);

@@ -42,4 +42,4 @@ pub use rift_timing::{RiftTimingData, RiftTimingWell, rift_timing_chart};
 pub use section_profile::{SectionProfileChartData, section_profile_chart};
 pub use style::{lithology_colour_hex, sequential_colour_hex};
 pub use subsidence::{PhaseBand, SubsidenceChartData, TectonicPoint, subsidence_chart};
-pub use well_map::{MAX_NAMED_WELLS, MapWell, WellMapData, well_map_chart};
+pub use well_map::{MAX_NAMED_WELLS, MapSection, MapWell, WellMapData, well_map_chart};
