@@ -27,6 +27,8 @@ const NO_USER: i64 = 999_999;
 const NO_LITHOLOGY: i64 = 999_999;
 /// An upload token that names no held upload.
 const NO_UPLOAD: &str = "00000000000000ab";
+/// A section id that names no section.
+const NO_SECTION: i64 = 999_999;
 
 /// Every page and JSON route that reads, for a study and well of the demo.
 fn reads(study: i64, well: i64) -> Vec<String> {
@@ -45,6 +47,11 @@ fn reads(study: i64, well: i64) -> Vec<String> {
         format!("/api/studies/{study}/upload/{NO_UPLOAD}"),
         format!("/studies/{study}/catalogue"),
         format!("/api/studies/{study}/catalogue"),
+        format!("/studies/{study}/sections"),
+        format!("/api/studies/{study}/sections"),
+        format!("/studies/{study}/sections/{NO_SECTION}"),
+        format!("/api/studies/{study}/sections/{NO_SECTION}"),
+        format!("/studies/{study}/sections/{NO_SECTION}/download/deflection.svg"),
         format!("/studies/{study}/activity"),
         format!("/api/studies/{study}/activity"),
         format!("/studies/{study}/activity/download"),
@@ -113,6 +120,43 @@ fn changes(study: i64, well: i64) -> Vec<Change> {
             M::POST,
             format!("/api/studies/{study}/tops"),
             Empty,
+            Interpreter,
+        ),
+        // Sections: adding, changing and removing (an interpreter's work, like picks).
+        change(
+            M::POST,
+            format!("/studies/{study}/sections"),
+            Form(&[("name", "")]),
+            Interpreter,
+        ),
+        change(
+            M::POST,
+            format!("/api/studies/{study}/sections"),
+            Json(json!({})),
+            Interpreter,
+        ),
+        change(
+            M::POST,
+            format!("/studies/{study}/sections/{NO_SECTION}"),
+            Form(&[("name", "")]),
+            Interpreter,
+        ),
+        change(
+            M::PUT,
+            format!("/api/studies/{study}/sections/{NO_SECTION}"),
+            Json(json!({})),
+            Interpreter,
+        ),
+        change(
+            M::POST,
+            format!("/studies/{study}/sections/{NO_SECTION}/remove"),
+            Form(&[("version", "1")]),
+            Interpreter,
+        ),
+        change(
+            M::POST,
+            format!("/api/studies/{study}/sections/{NO_SECTION}/remove"),
+            Json(json!({ "version": 1 })),
             Interpreter,
         ),
         // The review: picks (saving, agreeing and clearing) and comments.

@@ -669,3 +669,116 @@ mod throttle {
         assert!(throttle::for_accounts(&pool).await.unwrap().is_empty());
     }
 }
+
+mod sections {
+    use super::*;
+    use sagline::store::sections::SectionValues;
+
+    const LINE: &str = r#"[{"x_m":0.0,"y_m":0.0},{"x_m":10000.0,"y_m":0.0}]"#;
+
+    fn values<'a>(name: &'a str, te_km: f64, state: &'a str) -> SectionValues<'a> {
+        SectionValues {
+            name,
+            points: LINE,
+            max_offset_m: 2500.0,
+            elastic_thickness_km: te_km,
+            te_state: state,
+        }
+    }
+
+    #[tokio::test]
+    async fn a_section_is_stored_read_back_and_saved_only_over_its_own_version() {
+        let (_dir, pool) = fresh().await;
+        let s = study(&pool, "Fell Basin").await;
+        let other = study(&pool, "Moor Basin").await;
+        let id = store::sections::insert(&pool, s, &values("Ridge line", 20.0, "proposed"), "ana")
+            .await
+            .unwrap();
+        let stored = store::sections::get(&pool, s, id).await.unwrap().unwrap();
+        assert_eq!(stored.name, "Ridge line");
+        assert_eq!(stored.points, LINE);
+        assert_eq!(stored.max_offset_m, 2500.0);
+        assert_eq!(stored.elastic_thickness_km, 20.0);
+        assert_eq!((stored.te_state.as_str(), stored.version), ("proposed", 1));
+        assert_eq!(stored.updated_by, "ana");
+        assert!(
+            store::sections::get(&pool, other, id)
+                .await
+                .unwrap()
+                .is_none(),
+            "another study's"
+        );
+
+        let taken =
+            store::sections::insert(&pool, s, &values("Ridge line", 10.0, "proposed"), "ben").await;
+        assert!(
+            matches!(taken, Err(sqlx::Error::Database(ref e)) if e.is_unique_violation()),
+            "one name per study: {taken:?}"
+        );
+        store::sections::insert(&pool, other, &values("Ridge line", 10.0, "proposed"), "ben")
+            .await
+            .expect("the same name in another study");
+
+        assert!(
+            store::sections::update(
+                &pool,
+                s,
+                id,
+                1,
+                &values("Ridge line", 15.0, "agreed"),
+                "ben"
+            )
+            .await
+            .unwrap()
+        );
+        assert!(
+            !store::sections::update(
+                &pool,
+                s,
+                id,
+                1,
+                &values("Ridge line", 30.0, "proposed"),
+                "ana"
+            )
+            .await
+            .unwrap(),
+            "stale"
+        );
+        let saved = store::sections::get(&pool, s, id).await.unwrap().unwrap();
+        assert_eq!(
+            (
+                saved.elastic_thickness_km,
+                saved.te_state.as_str(),
+                saved.version
+            ),
+            (15.0, "agreed", 2)
+        );
+        assert_eq!(saved.updated_by, "ben");
+        assert_eq!(store::sections::list(&pool, s).await.unwrap().len(), 1);
+
+        assert!(
+            !store::sections::delete(&pool, s, id, 1).await.unwrap(),
+            "stale removal"
+        );
+        assert!(store::sections::delete(&pool, s, id, 2).await.unwrap());
+        assert!(store::sections::list(&pool, s).await.unwrap().is_empty());
+        assert_eq!(store::sections::list(&pool, other).await.unwrap().len(), 1);
+    }
+
+    #[tokio::test]
+    async fn the_table_refuses_a_negative_te_and_an_unknown_state() {
+        let (_dir, pool) = fresh().await;
+        let s = study(&pool, "Fell Basin").await;
+        assert!(
+            store::sections::insert(&pool, s, &values("A", -1.0, "proposed"), "ana")
+                .await
+                .is_err()
+        );
+        assert!(
+            store::sections::insert(&pool, s, &values("B", 10.0, "maybe"), "ana")
+                .await
+                .is_err()
+        );
+        assert!(store::sections::list(&pool, s).await.unwrap().is_empty());
+    }
+}

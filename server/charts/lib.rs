@@ -1,4 +1,4 @@
-//! Server-side SVG charts for the well page and the study overview.
+//! Server-side SVG charts for the well page, the study overview and the section page.
 //!
 //! Every chart is a pure function: a plain input struct defined here (the web layer
 //! maps its own views into it) and a [`ChartSize`] in, an SVG document as a `String`
@@ -21,7 +21,9 @@ mod frame;
 mod heat_flow;
 mod maturity;
 mod png;
+mod restored_section;
 mod rift_timing;
+mod section_profile;
 mod style;
 mod subsidence;
 mod svg;
@@ -37,7 +39,9 @@ pub use frame::ChartSize;
 pub use heat_flow::{HeatFlowChartData, heat_flow_chart};
 pub use maturity::{MaturityBand, MaturityChartData, MaturityHorizon, maturity_chart};
 pub use png::svg_to_png;
+pub use restored_section::{RestoredColumn, RestoredSectionChartData, restored_section_chart};
 pub use rift_timing::{RiftTimingData, RiftTimingWell, rift_timing_chart};
+pub use section_profile::{SectionProfileChartData, section_profile_chart};
 pub use style::{lithology_colour_hex, sequential_colour_hex};
 pub use subsidence::{PhaseBand, SubsidenceChartData, TectonicPoint, subsidence_chart};
-pub use well_map::{MAX_NAMED_WELLS, MapWell, WellMapData, well_map_chart};
+pub use well_map::{MAX_NAMED_WELLS, MapSection, MapWell, WellMapData, well_map_chart};

@@ -303,6 +303,7 @@ pub(crate) fn sample_map() -> WellMapData {
             well("Q-5", 411_200.0, 6_117_800.0, Some(1.31)),
             well("Q-6 (no coordinates)", f64::NAN, f64::NAN, Some(2.4)),
         ],
+        sections: Vec::new(),
     }
 }
 
@@ -368,6 +369,7 @@ fn every_chart_survives_odd_sizes_and_sparse_data() {
                         y_m: 0.0,
                         beta: Some(1.2),
                     }],
+                    sections: Vec::new(),
                 },
                 size,
             ),

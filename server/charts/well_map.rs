@@ -21,16 +21,28 @@ pub struct MapWell {
     pub beta: Option<f64>,
 }
 
+/// A section line on the map.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MapSection {
+    pub name: String,
+    /// (easting, northing) in projected metres, in order along the line.
+    pub points: Vec<(f64, f64)>,
+}
+
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct WellMapData {
     pub title: String,
     pub wells: Vec<MapWell>,
+    /// The study's section lines, drawn under the wells.
+    pub sections: Vec<MapSection>,
 }
 
 /// Wells are named on the map up to this many; beyond it the names would crowd
 /// the map, and each marker keeps its name as a tooltip.
 pub const MAX_NAMED_WELLS: usize = 40;
 const MARKER_RADIUS: f64 = 7.0;
+/// Section lines on the map.
+const SECTION_LINE: super::svg::Colour = super::svg::Colour(150, 60, 110);
 const Y_LABEL_AREA: f64 = 84.0;
 
 /// Draw the well map as an SVG document.
@@ -59,7 +71,18 @@ fn draw(data: &WellMapData, doc: &mut Document, body: Area) {
 
     let (panel, side) = plot_and_side(body);
     let area = plot_area(panel, Y_LABEL_AREA);
-    let (x_range, y_range) = equal_scale(&shown, area.width.max(1.0), area.height.max(1.0));
+    let line_points: Vec<(f64, f64)> = data
+        .sections
+        .iter()
+        .flat_map(|s| s.points.iter().copied())
+        .filter(|p| p.0.is_finite() && p.1.is_finite())
+        .collect();
+    let (x_range, y_range) = equal_scale(
+        &shown,
+        &line_points,
+        area.width.max(1.0),
+        area.height.max(1.0),
+    );
     let spec = AxesSpec {
         x: x_range,
         y: y_range,
@@ -71,6 +94,35 @@ fn draw(data: &WellMapData, doc: &mut Document, body: Area) {
     let (plot, axes_group) = axes(panel, &spec);
     doc.push(axes_group);
     let centres: Vec<(f64, f64)> = shown.iter().map(|w| plot.at((w.x_m, w.y_m))).collect();
+    for section in &data.sections {
+        let points: Vec<(f64, f64)> = section
+            .points
+            .iter()
+            .copied()
+            .filter(|p| p.0.is_finite() && p.1.is_finite())
+            .collect();
+        let Some(&first) = points.first() else {
+            continue;
+        };
+        let start = plot.at(first);
+        doc.push(titled(
+            group("section")
+                .attr("data-name", &section.name)
+                .child(
+                    super::svg::polyline(plot.points(points))
+                        .stroke(SECTION_LINE, 2.0)
+                        .keyword("stroke-dasharray", super::style::DASH),
+                )
+                .child(text(
+                    (start.0, start.1 - 6.0),
+                    section.name.clone(),
+                    font(TEXT_PX)
+                        .colour(SECTION_LINE)
+                        .align(HAlign::Start, VAlign::Baseline),
+                )),
+            format!("Section {}", section.name),
+        ));
+    }
 
     for (well, &centre) in shown.iter().zip(&centres) {
         let g = group("well").attr("data-name", &well.name);
@@ -182,11 +234,14 @@ fn scale_position(beta: f64, range: Option<(f64, f64)>) -> f64 {
 /// both axes so that distances and shapes read true.
 fn equal_scale(
     wells: &[&MapWell],
+    lines: &[(f64, f64)],
     w_px: f64,
     h_px: f64,
 ) -> (std::ops::Range<f64>, std::ops::Range<f64>) {
-    let (x_lo, x_hi) = extent(wells.iter().map(|w| w.x_m)).unwrap_or((0.0, 1.0));
-    let (y_lo, y_hi) = extent(wells.iter().map(|w| w.y_m)).unwrap_or((0.0, 1.0));
+    let (x_lo, x_hi) =
+        extent(wells.iter().map(|w| w.x_m).chain(lines.iter().map(|p| p.0))).unwrap_or((0.0, 1.0));
+    let (y_lo, y_hi) =
+        extent(wells.iter().map(|w| w.y_m).chain(lines.iter().map(|p| p.1))).unwrap_or((0.0, 1.0));
     let (x_lo, x_hi) = padded(x_lo, x_hi, 0.08, 2000.0);
     let (y_lo, y_hi) = padded(y_lo, y_hi, 0.08, 2000.0);
     let per_px = ((x_hi - x_lo) / w_px).max((y_hi - y_lo) / h_px);
@@ -519,6 +574,7 @@ mod tests {
             &WellMapData {
                 title: "Many".into(),
                 wells,
+                sections: Vec::new(),
             },
             ChartSize::default(),
         );
@@ -533,11 +589,48 @@ mod tests {
             &WellMapData {
                 title: "Empty study".into(),
                 wells: Vec::new(),
+                sections: Vec::new(),
             },
             ChartSize::default(),
         );
         let doc = parse(&svg);
         assert!(message(&doc).contains("No wells"));
+        assert_legible(&doc);
+    }
+
+    #[test]
+    fn a_section_line_is_drawn_through_its_points_and_widens_the_map() {
+        let mut data = sample_map();
+        // Invented: a line from beside the first well to well beyond the others.
+        data.sections.push(MapSection {
+            name: "Ridge line".into(),
+            points: vec![(400_000.0, 6_100_000.0), (440_000.0, 6_120_000.0)],
+        });
+        let svg = well_map_chart(&data, ChartSize::default());
+        let doc = parse(&svg);
+        let line = groups(&doc, "section")
+            .into_iter()
+            .find(|g| g.attribute("data-name") == Some("Ridge line"))
+            .expect("the section line");
+        let points: Vec<(f64, f64)> = first_child(&line, "polyline")
+            .attribute("points")
+            .unwrap()
+            .split_whitespace()
+            .map(|p| {
+                let (a, b) = p.split_once(',').unwrap();
+                (a.parse().unwrap(), b.parse().unwrap())
+            })
+            .collect();
+        let (x, y) = (x_axis_map(&doc), y_axis_map(&doc));
+        assert_eq!(points.len(), 2);
+        assert_close(points[1].0, x(440_000.0), 1.5, "the far end's easting");
+        assert_close(points[1].1, y(6_120_000.0), 1.5, "the far end's northing");
+        let right_edge = doc
+            .descendants()
+            .filter(|n| n.has_tag_name("rect"))
+            .map(|n| attr_f64(&n, "width"))
+            .fold(0.0, f64::max);
+        assert!(points[1].0 < right_edge, "the far end lies on the chart");
         assert_legible(&doc);
     }
 }

@@ -11,6 +11,7 @@ pub mod exports;
 pub mod import;
 pub mod results;
 pub mod review;
+pub mod sections;
 pub mod studies;
 pub mod upload;
 pub mod well_charts;

@@ -11,6 +11,7 @@ pub mod comments;
 pub mod lithologies;
 pub mod picks;
 pub mod sea_level;
+pub mod sections;
 pub mod sessions;
 pub mod studies;
 pub mod throttle;

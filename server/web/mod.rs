@@ -13,6 +13,7 @@ pub mod exports;
 pub mod live;
 pub mod pages;
 pub mod review;
+pub mod sections;
 pub mod staging;
 pub mod studies;
 pub mod upload;
@@ -78,6 +79,7 @@ pub fn router(state: AppState) -> Router {
         .merge(studies::routes())
         .merge(wells::routes())
         .merge(review::routes())
+        .merge(sections::routes())
         .merge(upload::routes())
         .merge(catalogue::routes())
         .merge(activity::routes())

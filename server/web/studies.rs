@@ -14,7 +14,7 @@ use axum::extract::{Path, State};
 use axum::response::{Html, Redirect, Response};
 use axum::routing::get;
 use axum::{Form, Json, Router};
-use sagline_charts::{ChartSize, MapWell, RiftTimingData, RiftTimingWell, WellMapData};
+use sagline_charts::{ChartSize, MapSection, MapWell, RiftTimingData, RiftTimingWell, WellMapData};
 use sagline_science::analysis::contract::RiftEventOut;
 use sagline_science::analysis::{self, StudyInputs};
 use serde::{Deserialize, Serialize};
@@ -215,10 +215,10 @@ async fn overview_rows(
     Ok((inputs.clone(), rows))
 }
 
-fn overview_charts(study: &str, rows: &[OverviewRow]) -> OverviewCharts {
+fn overview_charts(study: &str, rows: &[OverviewRow], sections: &[MapSection]) -> OverviewCharts {
     let size = ChartSize::default();
     OverviewCharts {
-        map: sagline_charts::well_map_chart(&map_data(study, rows), size),
+        map: sagline_charts::well_map_chart(&map_data(study, rows, sections), size),
         rift_timing: sagline_charts::rift_timing_chart(
             &rift_timing_data(study, rows),
             ChartSize {
@@ -234,7 +234,19 @@ fn rift_chart_height(wells: usize) -> u32 {
     (160 + 14 * wells as u32).clamp(320, 1400)
 }
 
-fn map_data(study: &str, rows: &[OverviewRow]) -> WellMapData {
+/// The study's section lines for the map.
+async fn map_sections(state: &AppState, id: i64) -> ApiResult<Vec<MapSection>> {
+    Ok(crate::services::sections::list(&state.db, id)
+        .await?
+        .into_iter()
+        .map(|s| MapSection {
+            name: s.name,
+            points: s.points.iter().map(|p| (p.x_m, p.y_m)).collect(),
+        })
+        .collect())
+}
+
+fn map_data(study: &str, rows: &[OverviewRow], sections: &[MapSection]) -> WellMapData {
     WellMapData {
         title: format!("Wells of {study} by stretching factor β"),
         wells: rows
@@ -246,6 +258,7 @@ fn map_data(study: &str, rows: &[OverviewRow]) -> WellMapData {
                 beta: r.beta,
             })
             .collect(),
+        sections: sections.to_vec(),
     }
 }
 
@@ -282,8 +295,9 @@ async fn study_view(state: &AppState, id: i64, draw: bool) -> ApiResult<StudyVie
     let (_, wells) = overview_rows(state, id, &summaries).await?;
     let (wells, charts) = if draw {
         let name = study.name.clone();
+        let sections = map_sections(state, id).await?;
         tokio::task::spawn_blocking(move || {
-            let charts = overview_charts(&name, &wells);
+            let charts = overview_charts(&name, &wells, &sections);
             (wells, charts)
         })
         .await
@@ -316,10 +330,13 @@ async fn study_download(
         None
     };
     let base = study.name.clone();
+    let sections = map_sections(&state, id).await?;
     // Drawing, rasterising and serialising stay off the async workers.
-    tokio::task::spawn_blocking(move || study_file(&meta, &base, &rows, memo.as_deref(), &file))
-        .await
-        .map_err(|e| AppError::Internal(anyhow::anyhow!("download task failed: {e}")))?
+    tokio::task::spawn_blocking(move || {
+        study_file(&meta, &base, &rows, &sections, memo.as_deref(), &file)
+    })
+    .await
+    .map_err(|e| AppError::Internal(anyhow::anyhow!("download task failed: {e}")))?
 }
 
 /// One download of the overview.
@@ -327,6 +344,7 @@ fn study_file(
     meta: &ExportMeta,
     base: &str,
     rows: &[OverviewRow],
+    sections: &[MapSection],
     memo: Option<&results::StudyResults>,
     file: &str,
 ) -> ApiResult<Response> {
@@ -382,7 +400,7 @@ fn study_file(
             "image/svg+xml",
             &format!("{base}-map.svg"),
             meta.stamp_svg(&sagline_charts::well_map_chart(
-                &map_data(&base, rows),
+                &map_data(&base, rows, sections),
                 ChartSize::default(),
             )),
         ),
@@ -401,8 +419,10 @@ fn study_file(
             )
         }
         "map.png" => {
-            let chart =
-                sagline_charts::well_map_chart(&map_data(&base, rows), ChartSize::default());
+            let chart = sagline_charts::well_map_chart(
+                &map_data(&base, rows, sections),
+                ChartSize::default(),
+            );
             exports::png_download(&meta, &format!("{base}-map.png"), &chart)
         }
         "rift-timing.png" => {
