@@ -110,6 +110,16 @@ pub struct ServeArgs {
     /// A new database starts without the demo study.
     #[arg(long)]
     pub empty: bool,
+    /// Connections served at once; more wait until one closes.
+    #[arg(long, default_value_t = crate::server::DEFAULT_MAX_CONNECTIONS, value_parser = clap::value_parser!(u32).range(1..))]
+    pub max_connections: u32,
+    /// Seconds a connection has to send a request's header; also how long an idle
+    /// connection is kept open.
+    #[arg(long, value_name = "SECS", default_value_t = crate::server::DEFAULT_HEADER_TIMEOUT_SECS, value_parser = clap::value_parser!(u64).range(1..))]
+    pub header_timeout: u64,
+    /// Seconds a request body may pause before the request fails.
+    #[arg(long, value_name = "SECS", default_value_t = crate::server::DEFAULT_BODY_TIMEOUT_SECS, value_parser = clap::value_parser!(u64).range(1..))]
+    pub body_timeout: u64,
 }
 
 impl ServeArgs {
@@ -136,6 +146,11 @@ impl ServeArgs {
             db_path: self.db_path(),
             may_create: self.may_create(),
             empty: self.empty,
+            connections: crate::server::ConnectionSettings {
+                header_timeout: std::time::Duration::from_secs(self.header_timeout),
+                body_timeout: std::time::Duration::from_secs(self.body_timeout),
+                limit: crate::server::ConnectionLimit::new(self.max_connections as usize),
+            },
         }
     }
 }
@@ -147,6 +162,9 @@ impl Default for ServeArgs {
             db: None,
             create: false,
             empty: false,
+            max_connections: crate::server::DEFAULT_MAX_CONNECTIONS,
+            header_timeout: crate::server::DEFAULT_HEADER_TIMEOUT_SECS,
+            body_timeout: crate::server::DEFAULT_BODY_TIMEOUT_SECS,
         }
     }
 }
