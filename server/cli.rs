@@ -113,6 +113,9 @@ pub struct ServeArgs {
     /// Connections served at once; more wait until one closes.
     #[arg(long, default_value_t = crate::server::DEFAULT_MAX_CONNECTIONS, value_parser = clap::value_parser!(u32).range(1..))]
     pub max_connections: u32,
+    /// Connections served at once from one client address; more are closed at once.
+    #[arg(long, default_value_t = crate::server::DEFAULT_MAX_CONNECTIONS_PER_ADDRESS, value_parser = clap::value_parser!(u32).range(1..))]
+    pub max_connections_per_address: u32,
     /// Seconds a connection has to send a request's header; also how long an idle
     /// connection is kept open.
     #[arg(long, value_name = "SECS", default_value_t = crate::server::DEFAULT_HEADER_TIMEOUT_SECS, value_parser = clap::value_parser!(u64).range(1..))]
@@ -149,7 +152,10 @@ impl ServeArgs {
             connections: crate::server::ConnectionSettings {
                 header_timeout: std::time::Duration::from_secs(self.header_timeout),
                 body_timeout: std::time::Duration::from_secs(self.body_timeout),
-                limit: crate::server::ConnectionLimit::new(self.max_connections as usize),
+                limit: crate::server::ConnectionLimit::new(
+                    self.max_connections as usize,
+                    self.max_connections_per_address as usize,
+                ),
             },
         }
     }
@@ -163,6 +169,7 @@ impl Default for ServeArgs {
             create: false,
             empty: false,
             max_connections: crate::server::DEFAULT_MAX_CONNECTIONS,
+            max_connections_per_address: crate::server::DEFAULT_MAX_CONNECTIONS_PER_ADDRESS,
             header_timeout: crate::server::DEFAULT_HEADER_TIMEOUT_SECS,
             body_timeout: crate::server::DEFAULT_BODY_TIMEOUT_SECS,
         }

@@ -10,12 +10,12 @@ use hyper::server::conn::http1;
 use hyper_util::rt::{TokioIo, TokioTimer};
 use hyper_util::server::graceful::GracefulShutdown;
 use hyper_util::service::TowerToHyperService;
+use std::collections::HashMap;
 use std::future::Future;
-use std::net::SocketAddr;
+use std::net::{IpAddr, SocketAddr};
 use std::path::PathBuf;
 use std::pin::pin;
-use std::sync::Arc;
-use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::{Arc, Mutex};
 use std::time::Duration;
 use tokio::net::TcpListener;
 use tokio::sync::{OwnedSemaphorePermit, Semaphore};
@@ -99,7 +99,8 @@ pub struct ConnectionSettings {
     pub header_timeout: Duration,
     /// A request body that sends nothing for this long fails.
     pub body_timeout: Duration,
-    /// Connections open at once; more wait in the system's queue until one closes.
+    /// Connections open at once (more wait in the system's queue until one closes), and
+    /// from one address (more are closed at once).
     pub limit: ConnectionLimit,
 }
 
@@ -110,45 +111,69 @@ pub const DEFAULT_BODY_TIMEOUT_SECS: u64 = 30;
 /// Connections served at once (half of the usual limit of 1,024 open files, leaving room
 /// for the database, the logs and staged files).
 pub const DEFAULT_MAX_CONNECTIONS: u32 = 512;
+/// Connections served at once from one client address: one machine opening hundreds of
+/// idle connections takes only its share, the rest are closed at once.
+pub const DEFAULT_MAX_CONNECTIONS_PER_ADDRESS: u32 = 128;
 
 impl Default for ConnectionSettings {
     fn default() -> Self {
         ConnectionSettings {
             header_timeout: Duration::from_secs(DEFAULT_HEADER_TIMEOUT_SECS),
             body_timeout: Duration::from_secs(DEFAULT_BODY_TIMEOUT_SECS),
-            limit: ConnectionLimit::new(DEFAULT_MAX_CONNECTIONS as usize),
+            limit: ConnectionLimit::new(
+                DEFAULT_MAX_CONNECTIONS as usize,
+                DEFAULT_MAX_CONNECTIONS_PER_ADDRESS as usize,
+            ),
         }
     }
 }
 
-/// The cap on open connections, shared by the accept loop and whoever watches it.
+/// The caps on open connections, in all and from one address, shared by the accept
+/// loop and whoever watches it.
 #[derive(Debug, Clone)]
 pub struct ConnectionLimit {
     permits: Arc<Semaphore>,
     max: usize,
-    open: Arc<AtomicUsize>,
+    per_address: usize,
+    open: Arc<Mutex<OpenCount>>,
 }
 
-/// One accepted connection's place under the cap, given back when it is dropped.
+#[derive(Debug, Default)]
+struct OpenCount {
+    all: usize,
+    by_address: HashMap<IpAddr, usize>,
+}
+
+/// One accepted connection's place under the caps, given back when it is dropped.
 struct Place {
     _permit: OwnedSemaphorePermit,
-    open: Arc<AtomicUsize>,
+    address: IpAddr,
+    open: Arc<Mutex<OpenCount>>,
 }
 
 impl Drop for Place {
     fn drop(&mut self) {
-        self.open.fetch_sub(1, Ordering::Relaxed);
+        let mut open = self.open.lock().expect("connection count lock");
+        open.all -= 1;
+        if let Some(n) = open.by_address.get_mut(&self.address) {
+            *n -= 1;
+            if *n == 0 {
+                open.by_address.remove(&self.address);
+            }
+        }
     }
 }
 
 impl ConnectionLimit {
-    /// At most `max` connections (at least one) open at once.
-    pub fn new(max: usize) -> Self {
+    /// At most `max` connections open at once, `per_address` of them from one client
+    /// address (both at least one).
+    pub fn new(max: usize, per_address: usize) -> Self {
         let max = max.max(1);
         ConnectionLimit {
             permits: Arc::new(Semaphore::new(max)),
             max,
-            open: Arc::new(AtomicUsize::new(0)),
+            per_address: per_address.max(1),
+            open: Arc::new(Mutex::new(OpenCount::default())),
         }
     }
 
@@ -158,7 +183,13 @@ impl ConnectionLimit {
 
     /// Connections open now.
     pub fn open(&self) -> usize {
-        self.open.load(Ordering::Relaxed)
+        self.open.lock().expect("connection count lock").all
+    }
+
+    /// Connections open now from this address.
+    pub fn open_from(&self, address: IpAddr) -> usize {
+        let open = self.open.lock().expect("connection count lock");
+        open.by_address.get(&address).copied().unwrap_or(0)
     }
 
     /// Wait for room for one more connection.
@@ -166,12 +197,20 @@ impl ConnectionLimit {
         self.permits.clone().acquire_owned().await.ok()
     }
 
-    fn take(&self, permit: OwnedSemaphorePermit) -> Place {
-        self.open.fetch_add(1, Ordering::Relaxed);
-        Place {
-            _permit: permit,
-            open: self.open.clone(),
+    /// A place for an accepted connection, unless its address holds its share already.
+    fn take(&self, permit: OwnedSemaphorePermit, address: IpAddr) -> Option<Place> {
+        let mut open = self.open.lock().expect("connection count lock");
+        let from_there = open.by_address.entry(address).or_insert(0);
+        if *from_there >= self.per_address {
+            return None;
         }
+        *from_there += 1;
+        open.all += 1;
+        Some(Place {
+            _permit: permit,
+            address,
+            open: self.open.clone(),
+        })
     }
 }
 
@@ -190,7 +229,8 @@ pub async fn serve(
 ///
 /// A connection is accepted only when there is room under the cap, so beyond it new
 /// connections wait in the system's listen queue (using no file descriptor of ours)
-/// until one closes; the header timeout closes connections that never send a request.
+/// until one closes; one from an address that holds its share already is closed at
+/// once; the header timeout closes connections that never send a request.
 pub async fn serve_with(
     listener: TcpListener,
     state: web::AppState,
@@ -224,7 +264,11 @@ pub async fn serve_with(
                 }
             },
         };
-        let place = settings.limit.take(permit);
+        let Some(place) = settings.limit.take(permit, peer.ip()) else {
+            tracing::debug!(%peer, "connection closed: its address holds its share of connections");
+            drop(stream);
+            continue;
+        };
         // The client address is what sign-in throttling counts failures by.
         let service = app.clone().map_request(move |mut r: Request<Incoming>| {
             r.extensions_mut().insert(ConnectInfo(peer));

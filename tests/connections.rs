@@ -10,9 +10,10 @@ mod common;
 use common::{ADMIN_NAME, ADMIN_PASSWORD, Agent, TestApp};
 use reqwest::StatusCode;
 use sagline::server::{ConnectionLimit, ConnectionSettings};
+use std::net::{IpAddr, SocketAddr};
 use std::time::Duration;
 use tokio::io::{AsyncReadExt, AsyncWriteExt};
-use tokio::net::TcpStream;
+use tokio::net::{TcpSocket, TcpStream};
 
 /// Longer than any timeout under test: a connection still open after this is a failure.
 const GIVE_UP: Duration = Duration::from_secs(30);
@@ -21,13 +22,25 @@ fn settings(header_secs: u64, body_secs: u64, max_connections: usize) -> Connect
     ConnectionSettings {
         header_timeout: Duration::from_secs(header_secs),
         body_timeout: Duration::from_secs(body_secs),
-        limit: ConnectionLimit::new(max_connections),
+        limit: ConnectionLimit::new(max_connections, max_connections),
     }
 }
 
 async fn raw_connection(app: &TestApp) -> TcpStream {
     let address = app.base.trim_start_matches("http://");
     TcpStream::connect(address).await.expect("connect")
+}
+
+/// A connection from another loopback address (another machine, as the server sees it).
+async fn raw_connection_from(app: &TestApp, from: IpAddr) -> TcpStream {
+    let server: SocketAddr = app
+        .base
+        .trim_start_matches("http://")
+        .parse()
+        .expect("server address");
+    let socket = TcpSocket::new_v4().expect("socket");
+    socket.bind(SocketAddr::new(from, 0)).expect("bind");
+    socket.connect(server).await.expect("connect")
 }
 
 /// Everything the server sends until it closes the connection (panics if it keeps
@@ -175,4 +188,49 @@ async fn beyond_the_cap_connections_wait_and_a_signed_in_person_is_served_once_o
         .expect("the request task");
     assert_eq!(answer.status, StatusCode::OK, "{}", answer.body);
     assert!(answer.body.contains(ADMIN_NAME), "{}", answer.body);
+}
+
+#[tokio::test]
+async fn one_address_gets_only_its_share_and_the_rest_of_the_office_is_served_at_once() {
+    let share = 3;
+    let settings = ConnectionSettings {
+        limit: ConnectionLimit::new(64, share),
+        ..settings(60, 60, 64)
+    };
+    let limit = settings.limit.clone();
+    let app = TestApp::with_connections(settings).await;
+    let flooder: IpAddr = "127.0.0.3".parse().expect("address");
+
+    let mut held = Vec::new();
+    for _ in 0..share {
+        held.push(raw_connection_from(&app, flooder).await);
+    }
+    wait_until("the address's share taken", || {
+        limit.open_from(flooder) == share
+    })
+    .await;
+
+    // One more from there is closed at once, unanswered.
+    let mut beyond = raw_connection_from(&app, flooder).await;
+    let answer = read_until_closed(&mut beyond).await;
+    assert_eq!(answer, "", "closed without an answer");
+    assert_eq!(limit.open_from(flooder), share);
+
+    // Everyone else is served meanwhile.
+    let session = app.get_json("/api/session").await;
+    assert_eq!(session["name"], ADMIN_NAME);
+
+    // Once one of its connections closes, the address may open another.
+    drop(held.pop());
+    wait_until("a place given back", || {
+        limit.open_from(flooder) == share - 1
+    })
+    .await;
+    let mut again = raw_connection_from(&app, flooder).await;
+    again
+        .write_all(b"GET /login HTTP/1.1\r\nHost: 127.0.0.1\r\nConnection: close\r\n\r\n")
+        .await
+        .expect("write");
+    let answer = read_until_closed(&mut again).await;
+    assert!(answer.starts_with("HTTP/1.1 200 OK"), "{answer:?}");
 }
