@@ -110,6 +110,19 @@ pub struct ServeArgs {
     /// A new database starts without the demo study.
     #[arg(long)]
     pub empty: bool,
+    /// Connections served at once; more wait until one closes.
+    #[arg(long, default_value_t = crate::server::DEFAULT_MAX_CONNECTIONS, value_parser = clap::value_parser!(u32).range(1..))]
+    pub max_connections: u32,
+    /// Connections served at once from one client address; more are closed at once.
+    #[arg(long, default_value_t = crate::server::DEFAULT_MAX_CONNECTIONS_PER_ADDRESS, value_parser = clap::value_parser!(u32).range(1..))]
+    pub max_connections_per_address: u32,
+    /// Seconds a connection has to send a request's header; also how long an idle
+    /// connection is kept open.
+    #[arg(long, value_name = "SECS", default_value_t = crate::server::DEFAULT_HEADER_TIMEOUT_SECS, value_parser = clap::value_parser!(u64).range(1..))]
+    pub header_timeout: u64,
+    /// Seconds a request body may pause before the request fails.
+    #[arg(long, value_name = "SECS", default_value_t = crate::server::DEFAULT_BODY_TIMEOUT_SECS, value_parser = clap::value_parser!(u64).range(1..))]
+    pub body_timeout: u64,
 }
 
 impl ServeArgs {
@@ -136,6 +149,14 @@ impl ServeArgs {
             db_path: self.db_path(),
             may_create: self.may_create(),
             empty: self.empty,
+            connections: crate::server::ConnectionSettings {
+                header_timeout: std::time::Duration::from_secs(self.header_timeout),
+                body_timeout: std::time::Duration::from_secs(self.body_timeout),
+                limit: crate::server::ConnectionLimit::new(
+                    self.max_connections as usize,
+                    self.max_connections_per_address as usize,
+                ),
+            },
         }
     }
 }
@@ -147,6 +168,10 @@ impl Default for ServeArgs {
             db: None,
             create: false,
             empty: false,
+            max_connections: crate::server::DEFAULT_MAX_CONNECTIONS,
+            max_connections_per_address: crate::server::DEFAULT_MAX_CONNECTIONS_PER_ADDRESS,
+            header_timeout: crate::server::DEFAULT_HEADER_TIMEOUT_SECS,
+            body_timeout: crate::server::DEFAULT_BODY_TIMEOUT_SECS,
         }
     }
 }

@@ -625,6 +625,22 @@ pub async fn resolve_session(
     }))
 }
 
+/// Whether a session is still open at `now` (not ended, expired or of a disabled
+/// account), without counting this as the person's activity.
+pub async fn session_is_open(
+    db: &SqlitePool,
+    session_digest: &str,
+    now: i64,
+) -> Result<bool, sqlx::Error> {
+    Ok(store::sessions::find(db, session_digest)
+        .await?
+        .is_some_and(|row| {
+            !row.disabled
+                && now < row.expires_at
+                && now - row.last_seen_at <= auth::SESSION_IDLE_SECS
+        }))
+}
+
 /// End one session.
 pub async fn log_out(db: &SqlitePool, session_digest: &str) -> Result<(), sqlx::Error> {
     store::sessions::delete(db, session_digest).await

@@ -86,13 +86,12 @@ async fn password_form(
             "The new password and its repetition differ; type the same new password twice.".into(),
         ))
     } else {
-        accounts::change_own_password(
-            &state.db,
+        change_own_password(
+            &state,
             &user,
             &form.current_password,
             &form.new_password,
             &client,
-            auth::unix_now(),
         )
         .await
     };
@@ -109,6 +108,23 @@ async fn password_form(
     Ok((status, Html(page.render()?)).into_response())
 }
 
+/// Change the password; the account's other sessions end, and their live streams too.
+async fn change_own_password(
+    state: &AppState,
+    user: &SignedIn,
+    current: &str,
+    new: &str,
+    client: &str,
+) -> Result<u64, ServiceError> {
+    let ended =
+        accounts::change_own_password(&state.db, user, current, new, client, auth::unix_now())
+            .await?;
+    state
+        .events
+        .end_user_sessions(user.user_id, Some(&user.session_digest));
+    Ok(ended)
+}
+
 /// An API client's change. No `Debug`: it holds passwords.
 #[derive(Deserialize)]
 struct PasswordJson {
@@ -122,13 +138,12 @@ async fn password_json(
     ClientAddress(client): ClientAddress,
     Json(body): Json<PasswordJson>,
 ) -> ApiResult<Json<serde_json::Value>> {
-    let ended = accounts::change_own_password(
-        &state.db,
+    let ended = change_own_password(
+        &state,
         &user,
         &body.current_password,
         &body.new_password,
         &client,
-        auth::unix_now(),
     )
     .await?;
     Ok(Json(serde_json::json!({ "other_sessions_ended": ended })))

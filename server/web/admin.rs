@@ -214,12 +214,43 @@ async fn role_json(
     ))
 }
 
+// Each change that ends an account's sessions also ends their live streams.
+
+async fn reset_password(
+    state: &AppState,
+    id: i64,
+    actor: &str,
+) -> Result<(UserRow, String), ServiceError> {
+    let issued = accounts::reset_password(&state.db, id, actor).await?;
+    state.events.end_user_sessions(id, None);
+    Ok(issued)
+}
+
+async fn disable(
+    state: &AppState,
+    id: i64,
+    disabled: bool,
+    actor: &str,
+) -> Result<UserRow, ServiceError> {
+    let user = accounts::set_disabled(&state.db, id, disabled, actor).await?;
+    if disabled {
+        state.events.end_user_sessions(id, None);
+    }
+    Ok(user)
+}
+
+async fn sign_out_everywhere(state: &AppState, id: i64, actor: &str) -> Result<u64, ServiceError> {
+    let ended = accounts::sign_out_everywhere(&state.db, id, actor).await?;
+    state.events.end_user_sessions(id, None);
+    Ok(ended)
+}
+
 async fn password_form(
     State(state): State<AppState>,
     admin: SignedIn,
     Path(id): Path<i64>,
 ) -> PageResult<Response> {
-    let outcome = accounts::reset_password(&state.db, id, &admin.name)
+    let outcome = reset_password(&state, id, &admin.name)
         .await
         .map(|(user, password)| {
             let notice = format!(
@@ -236,7 +267,7 @@ async fn password_json(
     admin: SignedIn,
     Path(id): Path<i64>,
 ) -> ApiResult<Response> {
-    let (user, password) = accounts::reset_password(&state.db, id, &admin.name).await?;
+    let (user, password) = reset_password(&state, id, &admin.name).await?;
     Ok(no_store(
         Json(IssuedPassword { user, password }).into_response(),
     ))
@@ -248,7 +279,7 @@ async fn set_disabled(
     id: i64,
     disabled: bool,
 ) -> Result<(String, Option<IssuedPassword>), ServiceError> {
-    let user = accounts::set_disabled(&state.db, id, disabled, &admin.name).await?;
+    let user = disable(state, id, disabled, &admin.name).await?;
     let notice = if disabled {
         format!("'{}' is disabled and signed out everywhere.", user.name)
     } else {
@@ -278,9 +309,7 @@ async fn disable_json(
     admin: SignedIn,
     Path(id): Path<i64>,
 ) -> ApiResult<Json<UserRow>> {
-    Ok(Json(
-        accounts::set_disabled(&state.db, id, true, &admin.name).await?,
-    ))
+    Ok(Json(disable(&state, id, true, &admin.name).await?))
 }
 
 async fn enable_json(
@@ -288,9 +317,7 @@ async fn enable_json(
     admin: SignedIn,
     Path(id): Path<i64>,
 ) -> ApiResult<Json<UserRow>> {
-    Ok(Json(
-        accounts::set_disabled(&state.db, id, false, &admin.name).await?,
-    ))
+    Ok(Json(disable(&state, id, false, &admin.name).await?))
 }
 
 async fn sign_out_form(
@@ -298,7 +325,7 @@ async fn sign_out_form(
     admin: SignedIn,
     Path(id): Path<i64>,
 ) -> PageResult<Response> {
-    let outcome = accounts::sign_out_everywhere(&state.db, id, &admin.name)
+    let outcome = sign_out_everywhere(&state, id, &admin.name)
         .await
         .map(|ended| (format!("{ended} session(s) ended."), None));
     render(&state, outcome).await
@@ -309,7 +336,7 @@ async fn sign_out_json(
     admin: SignedIn,
     Path(id): Path<i64>,
 ) -> ApiResult<Json<serde_json::Value>> {
-    let ended = accounts::sign_out_everywhere(&state.db, id, &admin.name).await?;
+    let ended = sign_out_everywhere(&state, id, &admin.name).await?;
     Ok(Json(serde_json::json!({ "sessions_ended": ended })))
 }
 

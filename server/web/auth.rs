@@ -377,6 +377,7 @@ fn signed_out() -> Response {
 /// `POST /logout`: end this session.
 async fn logout(State(state): State<AppState>, user: SignedIn) -> Result<Response, AppError> {
     accounts::log_out(&state.db, &user.session_digest).await?;
+    state.events.end_session(&user.session_digest);
     tracing::info!(user = %user.name, "signed out");
     Ok(signed_out())
 }
@@ -387,6 +388,7 @@ async fn logout_everywhere(
     user: SignedIn,
 ) -> Result<Response, AppError> {
     let ended = accounts::sign_out_everywhere(&state.db, user.user_id, &user.name).await?;
+    state.events.end_user_sessions(user.user_id, None);
     tracing::info!(user = %user.name, sessions = ended, "signed out everywhere");
     Ok(signed_out())
 }

@@ -11,6 +11,7 @@ pub mod catalogue;
 pub mod error;
 pub mod exports;
 pub mod live;
+pub mod origin;
 pub mod pages;
 pub mod review;
 pub mod sections;
@@ -93,6 +94,9 @@ pub fn router(state: AppState) -> Router {
             state.clone(),
             auth::guard,
         ))
+        // Before the guard reads anything: a change sent from another site's page is
+        // refused, the sign-in form included.
+        .layer(axum::middleware::from_fn(origin::same_origin))
         .layer(axum::extract::DefaultBodyLimit::max(MAX_BODY_BYTES))
         .layer(header("content-security-policy", CONTENT_SECURITY_POLICY))
         .layer(header("x-content-type-options", "nosniff"))

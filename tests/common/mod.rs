@@ -127,15 +127,21 @@ impl Answer {
 impl TestApp {
     /// The app with an empty database.
     pub async fn empty() -> TestApp {
-        TestApp::start(false).await
+        TestApp::start(false, sagline::server::ConnectionSettings::default()).await
+    }
+
+    /// The app with an empty database, served with these connection settings
+    /// (shortened timeouts, a small cap).
+    pub async fn with_connections(settings: sagline::server::ConnectionSettings) -> TestApp {
+        TestApp::start(false, settings).await
     }
 
     /// The app with the demo study seeded (its id in `demo_study`).
     pub async fn with_demo() -> TestApp {
-        TestApp::start(true).await
+        TestApp::start(true, sagline::server::ConnectionSettings::default()).await
     }
 
-    async fn start(demo: bool) -> TestApp {
+    async fn start(demo: bool, settings: sagline::server::ConnectionSettings) -> TestApp {
         let dir = tempfile::tempdir().expect("temporary directory");
         let pool = sagline::store::open(&dir.path().join("sagline.db"))
             .await
@@ -161,9 +167,10 @@ impl TestApp {
         let listener = TcpListener::bind("127.0.0.1:0").await.expect("bind port 0");
         let base = format!("http://{}", listener.local_addr().expect("local address"));
         let state = sagline::web::AppState::new(pool.clone());
-        let server = tokio::spawn(sagline::server::serve(
+        let server = tokio::spawn(sagline::server::serve_with(
             listener,
             state.clone(),
+            settings,
             std::future::pending(),
         ));
         let mut admin = Agent::new(&base);
