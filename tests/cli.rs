@@ -1219,3 +1219,31 @@ fn a_params_file_sets_the_surface_temperature_and_the_thermal_method() {
         &["kelvin.json: thermal", "surface temperature"],
     );
 }
+
+/// The demo's invented calibration file reads, and its BT-03 points (set warmer than the
+/// default model, demo-db/README.md) give a positive offset that improves the misfit.
+#[test]
+fn the_demo_calibration_file_proposes_a_warmer_bt03() {
+    let root = env!("CARGO_MANIFEST_DIR");
+    let ws = Workspace::new();
+    let out = ws.analyze(&[
+        &format!("{root}/demo-db/tops.csv"),
+        "--sea-level",
+        &format!("{root}/demo-db/sea_level.csv"),
+        "--calibration",
+        &format!("{root}/demo-db/calibration.csv"),
+    ]);
+    let json = success_json(&out);
+    let bt03 = json["wells"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|w| w["well"] == "BT-03")
+        .unwrap();
+    let c = &bt03["calibration"];
+    let p = &c["proposal"];
+    assert!(p["offset_min_mw_m2"].as_f64().unwrap() > 0.0, "{c}");
+    assert!(
+        p["fitted"]["chi_square"].as_f64().unwrap() < c["current"]["chi_square"].as_f64().unwrap()
+    );
+}
