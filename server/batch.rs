@@ -10,11 +10,11 @@
 
 use clap::{Args, ValueEnum};
 use sagline_science::analysis::contract::{ParametersOut, WellOut};
-use sagline_science::analysis::thermal::ThermalInputs;
+use sagline_science::analysis::thermal::{ThermalChoices, ThermalInputs};
 use sagline_science::analysis::{self, RiftTiming, StudyInputs};
 use sagline_science::input::{self, InputProblem, TopsOptions};
 use sagline_science::lithology::{Catalogue, Lithology};
-use sagline_science::thermal::{SurfaceTemperature, ThermalMethod};
+use sagline_science::thermal::ThermalMethod;
 use sagline_science::{ModelParameters, SeaLevelCurve, WellColumn};
 use serde::{Deserialize, Serialize};
 use std::cell::RefCell;
@@ -139,29 +139,14 @@ struct ThermalEntry {
 impl ThermalEntry {
     /// The thermal inputs: the defaults with what the file sets, each checked.
     fn inputs(&self, source: &str) -> Result<ThermalInputs, BatchError> {
-        let mut inputs = ThermalInputs::default();
-        let bad = |e: String| BatchError(format!("{source}: thermal: {e}"));
-        if let Some(t) = self.surface_temperature_c {
-            inputs.settings.surface =
-                SurfaceTemperature::constant(t, format!("{t} °C at every age, from {source}"))
-                    .map_err(|e| bad(e.to_string()))?;
-        }
-        if let Some(a) = self.crust_heat_production_uw_m3 {
-            if !(a.is_finite() && (0.0..=20.0).contains(&a)) {
-                return Err(bad(format!(
-                    "crust_heat_production_uw_m3 {a} is outside 0 to 20 µW/m³"
-                )));
-            }
-            inputs.crust.surface_production_w_m3 = a * 1e-6;
-        }
-        if let Some(d) = self.crust_heat_production_decay_km {
-            if !(d.is_finite() && (0.1..=100.0).contains(&d)) {
-                return Err(bad(format!(
-                    "crust_heat_production_decay_km {d} is outside 0.1 to 100 km"
-                )));
-            }
-            inputs.crust.decay_depth_m = d * 1e3;
-        }
+        let choices = ThermalChoices {
+            surface_temperature_c: self.surface_temperature_c,
+            crust_heat_production_uw_m3: self.crust_heat_production_uw_m3,
+            crust_heat_production_decay_km: self.crust_heat_production_decay_km,
+        };
+        let mut inputs = choices
+            .inputs(source)
+            .map_err(|e| BatchError(format!("{source}: thermal: {e}")))?;
         if let Some(m) = self.method {
             inputs.settings.method = m;
         }

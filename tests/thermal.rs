@@ -110,3 +110,74 @@ async fn the_maturity_chart_and_table_download() {
     assert_eq!(png.status, StatusCode::OK);
     assert_eq!(png.content_type, "image/png");
 }
+
+#[tokio::test]
+async fn an_admin_sets_the_study_surface_temperature_and_every_well_follows_it() {
+    let app = TestApp::with_demo().await;
+    let study = app.demo_study.unwrap();
+    let answer = app
+        .put_json(
+            &format!("/api/studies/{study}/thermal"),
+            &serde_json::json!({"surface_temperature_c": 22.0, "crust_heat_production_uw_m3": 1.0}),
+        )
+        .await;
+    assert_eq!(answer.status, StatusCode::OK, "{}", answer.body);
+    let well = app.well_json(study, "BT-01").await;
+    let thermal = &well["analysis"]["thermal"];
+    assert_eq!(
+        thermal["horizons"][0]["present_temperature_c"], 22.0,
+        "the sea floor"
+    );
+    assert!(
+        thermal["surface_temperature_source"]
+            .as_str()
+            .unwrap()
+            .contains("22 °C at every age, set for this study")
+    );
+    assert_eq!(thermal["crust_heat_production_uw_m3"], 1.0);
+    let log = app.activity(study).await;
+    assert!(
+        log.iter().any(|e| e["action"] == "edit thermal settings"),
+        "no activity line: {log:?}"
+    );
+    // The form page shows the stored value.
+    let page = app.get(&format!("/studies/{study}/catalogue")).await;
+    assert!(
+        page.body
+            .contains("name=\"surface_temperature_c\" value=\"22\"")
+    );
+}
+
+#[tokio::test]
+async fn an_impossible_surface_temperature_is_refused_and_nothing_changes() {
+    let app = TestApp::with_demo().await;
+    let study = app.demo_study.unwrap();
+    let before = app.database_content().await;
+    let answer = app
+        .put_json(
+            &format!("/api/studies/{study}/thermal"),
+            &serde_json::json!({"surface_temperature_c": 295.0}),
+        )
+        .await;
+    assert!(answer.status.is_client_error(), "{}", answer.status);
+    assert!(
+        answer.body.contains("surface temperature"),
+        "{}",
+        answer.body
+    );
+    assert_eq!(app.database_content().await, before);
+}
+
+#[tokio::test]
+async fn an_interpreter_may_not_change_the_thermal_settings() {
+    let app = TestApp::with_demo().await;
+    let study = app.demo_study.unwrap();
+    let interpreter = app.sign_in_as(sagline::auth::Role::Interpreter).await;
+    let answer = interpreter
+        .put_json(
+            &format!("/api/studies/{study}/thermal"),
+            &serde_json::json!({"surface_temperature_c": 15.0}),
+        )
+        .await;
+    assert_eq!(answer.status, StatusCode::FORBIDDEN);
+}

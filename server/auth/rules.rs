@@ -118,6 +118,18 @@ const RULES: &[Rule] = &[
     ),
     rule(
         Changes,
+        "/studies/*/thermal",
+        AtLeast(Admin),
+        "changing the thermal settings",
+    ),
+    rule(
+        Changes,
+        "/api/studies/*/thermal",
+        AtLeast(Admin),
+        "changing the thermal settings",
+    ),
+    rule(
+        Changes,
         "/studies/*/lithologies/**",
         AtLeast(Admin),
         "editing the lithology catalogue",
@@ -201,6 +213,8 @@ mod tests {
             ("POST", "/api/studies"),
             ("POST", "/studies/1/parameters"),
             ("PUT", "/api/studies/1/parameters"),
+            ("POST", "/studies/1/thermal"),
+            ("PUT", "/api/studies/1/thermal"),
             ("POST", "/studies/1/lithologies"),
             ("PUT", "/api/studies/1/lithologies"),
             ("POST", "/studies/1/lithologies/4/delete"),

@@ -2,7 +2,8 @@
 //!
 //! The key of a well's analysis is a hash of everything the result depends on: the
 //! well's surfaces, the parameters of the lithologies it uses (not the whole
-//! catalogue), the model parameters, the sea-level curve and the team's rift timing.
+//! catalogue), the model parameters, the sea-level curve, the thermal settings and the
+//! team's rift timing.
 //! An edit therefore invalidates exactly what it touches, with no bookkeeping: a
 //! changed well, or a lithology it uses, gives a new key; every other well keeps its
 //! entry. The cache is bounded by the size of what it holds (least recently used
@@ -67,6 +68,14 @@ pub fn content_key(
         bits(&mut h, p.age_ma);
         bits(&mut h, p.sea_level_m);
     }
+    // The thermal settings a study can change (the rest are the program's constants).
+    for &(age, t) in inputs.thermal.settings.surface.points() {
+        bits(&mut h, age);
+        bits(&mut h, t);
+    }
+    bits(&mut h, inputs.thermal.crust.surface_production_w_m3);
+    bits(&mut h, inputs.thermal.crust.decay_depth_m);
+    inputs.thermal.settings.method.hash(&mut h);
     match timing {
         Some(t) => {
             for &(onset, end) in t {

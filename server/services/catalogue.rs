@@ -27,6 +27,8 @@ pub struct CatalogueView {
     pub study: StudyInfo,
     pub parameters: Vec<ParameterEntry>,
     pub thermal_time_constant_myr: f64,
+    /// The study's thermal settings as stored (`None` = the default).
+    pub thermal: sagline_science::analysis::thermal::ThermalChoices,
     pub lithologies: Vec<LithologyRow>,
     pub sea_level: Vec<SeaLevelPoint>,
 }
@@ -50,6 +52,7 @@ pub async fn view(db: &SqlitePool, id: i64) -> Result<CatalogueView, ServiceErro
             })
             .collect(),
         thermal_time_constant_myr: params.thermal_time_constant_myr(),
+        thermal: study.thermal_choices(),
         lithologies: store::lithologies::list(db, id).await?,
         sea_level: store::sea_level::points(db, id).await?,
     })

@@ -144,6 +144,39 @@ pub async fn update_parameters(
     Ok(())
 }
 
+/// Replace a study's thermal settings (checked here), recording before -> after.
+pub async fn update_thermal(
+    db: &SqlitePool,
+    study_id: i64,
+    t: &sagline_science::analysis::thermal::ThermalChoices,
+    actor: &str,
+) -> Result<(), ServiceError> {
+    t.inputs("this study")
+        .map_err(|e| ServiceError::Invalid(e.to_string()))?;
+    let mut tx = store::write_transaction(db).await?;
+    let before = store::studies::get(&mut *tx, study_id)
+        .await?
+        .ok_or_else(|| ServiceError::NotFound(format!("study {study_id}")))?
+        .thermal_choices();
+    store::studies::update_thermal(&mut *tx, study_id, t).await?;
+    if before != *t {
+        store::activity::record(
+            &mut *tx,
+            Some(study_id),
+            Change {
+                actor,
+                action: "edit thermal settings",
+                subject: "thermal settings",
+                before: Some(serde_json::to_string(&before).unwrap_or_default()),
+                after: Some(serde_json::to_string(t).unwrap_or_default()),
+            },
+        )
+        .await?;
+    }
+    tx.commit().await?;
+    Ok(())
+}
+
 /// A lithology as typed in the catalogue form or sent to the API.
 #[derive(Debug, Clone, Deserialize)]
 pub struct LithologyEdit {
@@ -310,8 +343,10 @@ pub fn inputs_of(
         params: study.parameters(),
         catalogue,
         sea_level,
-        // No study-level thermal settings are stored yet: the defaults, which say so.
-        thermal: sagline_science::analysis::thermal::ThermalInputs::default(),
+        thermal: study
+            .thermal_choices()
+            .inputs("this study")
+            .map_err(|e| ServiceError::Invalid(format!("thermal settings of this study: {e}")))?,
     })
 }
 

@@ -2,6 +2,7 @@
 
 use super::StoreResult;
 use sagline_science::ModelParameters;
+use sagline_science::analysis::thermal::ThermalChoices;
 use serde::Serialize;
 use sqlx::{FromRow, SqliteExecutor};
 
@@ -14,6 +15,27 @@ pub struct StudyRow {
     #[sqlx(flatten)]
     #[serde(skip)]
     pub params: ParamsRow,
+    #[sqlx(flatten)]
+    #[serde(skip)]
+    pub thermal: ThermalRow,
+}
+
+/// The thermal-setting columns of a study; NULL keeps the program's default.
+#[derive(Debug, Clone, Copy, FromRow, Default, PartialEq)]
+pub struct ThermalRow {
+    pub surface_temperature_c: Option<f64>,
+    pub crust_heat_production_uw_m3: Option<f64>,
+    pub crust_heat_production_decay_km: Option<f64>,
+}
+
+impl From<ThermalRow> for ThermalChoices {
+    fn from(r: ThermalRow) -> Self {
+        ThermalChoices {
+            surface_temperature_c: r.surface_temperature_c,
+            crust_heat_production_uw_m3: r.crust_heat_production_uw_m3,
+            crust_heat_production_decay_km: r.crust_heat_production_decay_km,
+        }
+    }
 }
 
 /// The parameter columns of a study, mirrored 1:1 from `ModelParameters`.
@@ -50,6 +72,30 @@ impl StudyRow {
     pub fn parameters(&self) -> ModelParameters {
         self.params.into()
     }
+
+    pub fn thermal_choices(&self) -> ThermalChoices {
+        self.thermal.into()
+    }
+}
+
+/// Replace a study's thermal settings (already validated; `None` = the default).
+pub async fn update_thermal(
+    db: impl SqliteExecutor<'_>,
+    id: i64,
+    t: &ThermalChoices,
+) -> StoreResult<()> {
+    sqlx::query(
+        "UPDATE studies SET surface_temperature_c = ?, crust_heat_production_uw_m3 = ?,
+            crust_heat_production_decay_km = ?
+         WHERE id = ?",
+    )
+    .bind(t.surface_temperature_c)
+    .bind(t.crust_heat_production_uw_m3)
+    .bind(t.crust_heat_production_decay_km)
+    .bind(id)
+    .execute(db)
+    .await?;
+    Ok(())
 }
 
 /// A study with the counts shown on the studies page.

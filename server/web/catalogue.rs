@@ -11,6 +11,7 @@ use axum::extract::{Path, State};
 use axum::response::{Html, IntoResponse, Redirect, Response};
 use axum::routing::{get, post, put};
 use axum::{Form, Json, Router};
+use sagline_science::analysis::thermal::ThermalChoices;
 use std::collections::HashMap;
 
 pub fn routes() -> Router<AppState> {
@@ -19,6 +20,8 @@ pub fn routes() -> Router<AppState> {
         .route("/api/studies/{id}/catalogue", get(catalogue_json))
         .route("/studies/{id}/parameters", post(parameters_form))
         .route("/api/studies/{id}/parameters", put(parameters_json))
+        .route("/studies/{id}/thermal", post(thermal_form))
+        .route("/api/studies/{id}/thermal", put(thermal_json))
         .route("/studies/{id}/lithologies", post(lithology_form))
         .route("/api/studies/{id}/lithologies", put(lithology_json))
         .route(
@@ -102,6 +105,62 @@ async fn parameters_json(
         .await?
         .map_err(|problems| AppError::Rejected(problems.join("; ")))?;
     services::update_parameters(&state.db, id, &p, &user.name).await?;
+    Ok(Json(catalogue_view(&state, id).await?))
+}
+
+/// The thermal-settings form: each field a number, or empty for the default.
+async fn thermal_form(
+    State(state): State<AppState>,
+    user: SignedIn,
+    Path(id): Path<i64>,
+    Form(fields): Form<HashMap<String, String>>,
+) -> PageResult<Response> {
+    load_study(&state, id).await?;
+    let mut problems = Vec::new();
+    let mut read = |name: &str, what: &str| -> Option<f64> {
+        let raw = fields.get(name).map(|s| s.trim()).unwrap_or("");
+        if raw.is_empty() {
+            return None;
+        }
+        match raw.parse::<f64>() {
+            Ok(v) if v.is_finite() => Some(v),
+            _ => {
+                problems.push(format!("{what}: '{raw}' is not a number"));
+                None
+            }
+        }
+    };
+    let choices = ThermalChoices {
+        surface_temperature_c: read("surface_temperature_c", "surface temperature"),
+        crust_heat_production_uw_m3: read("crust_heat_production_uw_m3", "crustal heat production"),
+        crust_heat_production_decay_km: read("crust_heat_production_decay_km", "decay depth"),
+    };
+    if !problems.is_empty() {
+        return render(&state, id, problems, None).await;
+    }
+    match services::update_thermal(&state.db, id, &choices, &user.name).await {
+        Ok(()) => {
+            render(
+                &state,
+                id,
+                Vec::new(),
+                Some("Thermal settings saved.".into()),
+            )
+            .await
+        }
+        Err(ServiceError::Invalid(msg)) => render(&state, id, vec![msg], None).await,
+        Err(e) => Err(HtmlError(e.into())),
+    }
+}
+
+async fn thermal_json(
+    State(state): State<AppState>,
+    user: SignedIn,
+    Path(id): Path<i64>,
+    Json(choices): Json<ThermalChoices>,
+) -> ApiResult<Json<CatalogueView>> {
+    load_study(&state, id).await?;
+    services::update_thermal(&state.db, id, &choices, &user.name).await?;
     Ok(Json(catalogue_view(&state, id).await?))
 }
 

@@ -39,6 +39,55 @@ impl Default for ThermalInputs {
     }
 }
 
+/// A study's (or a batch run's) own thermal settings; `None` keeps the default.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, serde::Deserialize)]
+pub struct ThermalChoices {
+    /// Surface (sea-floor) temperature at every age, °C (-40 to 60).
+    pub surface_temperature_c: Option<f64>,
+    /// Radiogenic heat production at the top of the crust, µW/m³ (0 to 20).
+    pub crust_heat_production_uw_m3: Option<f64>,
+    /// Depth over which it falls by a factor e, km (0.1 to 100).
+    pub crust_heat_production_decay_km: Option<f64>,
+}
+
+impl ThermalChoices {
+    /// The defaults with these choices applied, `source` saying where they were set
+    /// (e.g. "this study").
+    ///
+    /// Errors: [`ScienceError::OutOfRange`] naming the first value out of its range.
+    pub fn inputs(&self, source: &str) -> Result<ThermalInputs, ScienceError> {
+        let mut inputs = ThermalInputs::default();
+        if let Some(t) = self.surface_temperature_c {
+            inputs.settings.surface = thermal::SurfaceTemperature::constant(
+                t,
+                format!("{t} °C at every age, set for {source}"),
+            )?;
+        }
+        let within = |name, value: f64, lo, hi, range| {
+            if value.is_finite() && (lo..=hi).contains(&value) {
+                Ok(value)
+            } else {
+                Err(ScienceError::OutOfRange { name, value, range })
+            }
+        };
+        if let Some(a) = self.crust_heat_production_uw_m3 {
+            let a = within("crustal heat production", a, 0.0, 20.0, "0 to 20 µW/m³")?;
+            inputs.crust.surface_production_w_m3 = a * 1e-6;
+        }
+        if let Some(d) = self.crust_heat_production_decay_km {
+            let d = within(
+                "heat-production decay depth",
+                d,
+                0.1,
+                100.0,
+                "0.1 to 100 km",
+            )?;
+            inputs.crust.decay_depth_m = d * 1e3;
+        }
+        Ok(inputs)
+    }
+}
+
 /// Grid and step of the plate run behind the basal heat flow: 201 nodes (625 m on a
 /// 125 km plate) and 0.25 Myr, as the finite-rift fits use; the heat flow it gives
 /// differs from the default resolution's by under 0.5 mW/m² in the tests.

@@ -144,7 +144,7 @@ fn piecewise_linear_by_age(points: &[(f64, f64)], age_ma: f64) -> f64 {
 }
 
 /// How the temperatures are computed (module note).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum ThermalMethod {
     /// Conduction through time with continuous burial and erosion.
