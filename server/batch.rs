@@ -298,43 +298,31 @@ fn analyze(args: &AnalyzeArgs) -> Result<(), BatchError> {
         Some(t) if problems.is_empty() => t,
         _ => return Err(problems.into()),
     };
-    let calibration_file = args
-        .calibration
-        .as_deref()
-        .map(file_name)
-        .unwrap_or_default();
-    let strangers: Vec<InputProblem> = calibration
-        .iter()
-        .filter(|p| !tops.wells.iter().any(|w| w.name == p.well))
-        .map(|p| InputProblem {
-            file: calibration_file.clone(),
-            line: Some(p.line),
-            column: Some("well".into()),
-            reason: format!(
-                "well \"{}\" is not in the tops file {}",
-                p.well,
-                file_name(&args.tops)
-            ),
-        })
-        .collect();
-    if !strangers.is_empty() {
-        return Err(strangers.into());
-    }
-    let picks_file = args.picks.as_deref().map(file_name).unwrap_or_default();
-    let unknown: Vec<InputProblem> = picks
-        .iter()
-        .filter(|p| !tops.wells.iter().any(|w| w.name == p.well))
-        .map(|p| InputProblem {
-            file: picks_file.clone(),
-            line: Some(p.line),
-            column: Some("well".into()),
-            reason: format!(
-                "well \"{}\" is not in the tops file {}",
-                p.well,
-                file_name(&args.tops)
-            ),
-        })
-        .collect();
+    // Rows of the picks and calibration files that name a well the tops file lacks.
+    let tops_name = file_name(&args.tops);
+    let strangers = |file: Option<&Path>, rows: Vec<(&str, usize)>| -> Vec<InputProblem> {
+        let file = file.map(file_name).unwrap_or_default();
+        rows.into_iter()
+            .filter(|(well, _)| !tops.wells.iter().any(|w| w.name == *well))
+            .map(|(well, line)| InputProblem {
+                file: file.clone(),
+                line: Some(line),
+                column: Some("well".into()),
+                reason: format!("well \"{well}\" is not in the tops file {tops_name}"),
+            })
+            .collect()
+    };
+    let mut unknown = strangers(
+        args.calibration.as_deref(),
+        calibration
+            .iter()
+            .map(|p| (p.well.as_str(), p.line))
+            .collect(),
+    );
+    unknown.extend(strangers(
+        args.picks.as_deref(),
+        picks.iter().map(|p| (p.well.as_str(), p.line)).collect(),
+    ));
     if !unknown.is_empty() {
         return Err(unknown.into());
     }
